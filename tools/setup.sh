@@ -12,7 +12,7 @@ build_packages="build-essential cmake pkg-config
   libyaml-cpp-dev nlohmann-json3-dev libsystemd-dev libssl-dev catch2"
 # Reference libraries the tests compare against, the fuzzing/sanitizer toolchain,
 # the browser that renders reports in the tests, and small tools the fault tests use.
-test_packages="python3 python3-numpy python3-scipy python3-statsmodels
+test_packages="python3 python3-numpy python3-scipy python3-statsmodels python3-pytest
   clang libclang-rt-14-dev chromium openssl socat util-linux procps"
 
 wanted="$build_packages"

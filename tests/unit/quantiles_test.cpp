@@ -62,3 +62,11 @@ TEST_CASE("F(2, nu) upper 5 % critical values match Harvey, Analytical Chemistry
     CHECK(computed == Approx(std::stod(row[2])).epsilon(1e-6));
   }
 }
+
+TEST_CASE("cached joint F(2, nu) critical values equal the closed form at every dof") {
+  const TwoSidedT t(0.95);
+  for (double nu : {1.0, 2.0, 4.0, 16.0, 4096.0, 4097.0, 1e6})
+    CHECK(t.joint_critical_value(nu) == Approx(f2_critical_value(0.05, nu)).epsilon(1e-14));
+  // nu -> infinity: F(2, inf) = chi^2_2 / 2 = -ln(alpha) (Harvey's table note: 2.995732 at alpha = 0.05)
+  CHECK(t.joint_critical_value(INFINITY) == Approx(2.995732).epsilon(1e-6));
+}

@@ -59,7 +59,7 @@ CertificateVerdict judge_against_certificate(const LineFit& fit, const Certified
   double q = quadratic_form_2x2(d_level, d_slope, var_level, var_slope, cov_ls);
   if (std::isinf(q) && d_level == 0 && d_slope == 0) q = 0;  // a perfect fit that matches exactly
   v.joint_statistic = 0.5 * q;
-  v.joint_critical = f2_critical_value(1.0 - t.confidence(), std::floor(fit.dof));
+  v.joint_critical = t.joint_critical_value(fit.dof);
   v.joint_consistent = v.joint_statistic <= v.joint_critical;
   return v;
 }

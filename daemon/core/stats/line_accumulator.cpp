@@ -1,6 +1,7 @@
 #include "rigcal/stats/line_accumulator.hpp"
 
 #include <algorithm>
+#include <cmath>
 
 namespace rigcal::stats {
 
@@ -11,9 +12,14 @@ namespace {
 // about the mean, a point elsewhere fixes the line through both and adds nothing.
 double ssr_increment(double g, double dx, double dy, double cxx, double cxy) {
   if (cxx > 0) {
-    const double inv_cxx = 1.0 / cxx;
-    const double e = dy - cxy * inv_cxx * dx;
-    return g * e * e / (1.0 + g * dx * dx * inv_cxx);
+    // One division: g (dy cxx - cxy dx)^2 / (cxx (cxx + g dx^2)). The product of co-moments can
+    // overflow for readings beyond ~1e77; fall back to the two-division form there.
+    const double num = dy * cxx - cxy * dx;
+    const double inc = g * num * num / (cxx * (cxx + g * dx * dx));
+    if (std::isfinite(inc)) [[likely]]
+      return inc;
+    const double e = dy - cxy / cxx * dx;
+    return g * e * e / (1.0 + g * dx * dx / cxx);
   }
   return dx == 0 ? g * dy * dy : 0.0;
 }
@@ -57,8 +63,9 @@ void LineAccumulator::remove(double x, double y, double w) {
   // quantities add() used when this pair joined a state equal to the remainder.
   const double sx = x - m_.shift_x;
   const double sy = y - m_.shift_y;
-  const double mean_x_rest = m_.dmean_x - w * (sx - m_.dmean_x) / w_rest;
-  const double mean_y_rest = m_.dmean_y - w * (sy - m_.dmean_y) / w_rest;
+  const double f = w / w_rest;
+  const double mean_x_rest = m_.dmean_x - f * (sx - m_.dmean_x);
+  const double mean_y_rest = m_.dmean_y - f * (sy - m_.dmean_y);
   const double dx = sx - mean_x_rest;
   const double dy = sy - mean_y_rest;
   const double g = w * w_rest / w_full;

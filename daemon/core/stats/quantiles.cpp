@@ -38,7 +38,18 @@ TwoSidedT::TwoSidedT(double confidence)
     : confidence_(confidence), z_(normal_quantile(0.5 + 0.5 * confidence)) {
   const double p = 0.5 + 0.5 * confidence;
   table_.reserve(exact_table_limit);
-  for (int nu = 1; nu <= exact_table_limit; ++nu) table_.push_back(student_t_quantile(p, nu));
+  f2_table_.reserve(exact_table_limit);
+  for (int nu = 1; nu <= exact_table_limit; ++nu) {
+    table_.push_back(student_t_quantile(p, nu));
+    f2_table_.push_back(f2_critical_value(1.0 - confidence, nu));
+  }
+}
+
+double TwoSidedT::joint_critical_value(double nu) const {
+  if (!(nu >= 1.0)) return std::numeric_limits<double>::infinity();
+  if (std::isinf(nu)) return -std::log(1.0 - confidence_);  // chi^2(2)/2 limit
+  if (nu <= exact_table_limit) return f2_table_[static_cast<std::size_t>(nu) - 1];
+  return f2_critical_value(1.0 - confidence_, std::floor(nu));
 }
 
 double TwoSidedT::critical_value(double nu) const {

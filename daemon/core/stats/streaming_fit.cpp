@@ -30,7 +30,7 @@ void StreamingLineFit::add(double x, double y, double w) {
     if (weighted_) w_[head_] = w;
     head_ = head_ + 1 == cap ? 0 : head_ + 1;
     acc_.add(x, y, w);
-    if (++removals_ >= cap) rebuild();
+    if (++removals_ >= rebuild_every_windows * cap) rebuild();
     return;
   }
   std::size_t tail = head_ + size_;

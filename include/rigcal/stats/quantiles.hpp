@@ -33,11 +33,14 @@ class TwoSidedT {
   double confidence() const { return confidence_; }
   // Critical value t such that P(|T_nu| <= t) = confidence. nu < 1 gives +infinity.
   double critical_value(double nu) const;
+  // F_{confidence}(2, nu) for the joint region of intercept and slope (same truncation of nu).
+  double joint_critical_value(double nu) const;
 
  private:
   double confidence_;
   double z_;  // normal quantile, the nu -> infinity limit
   std::vector<double> table_;  // table_[nu - 1] for nu = 1 .. exact_table_limit
+  std::vector<double> f2_table_;  // F(2, nu) likewise
 };
 
 }  // namespace rigcal::stats

@@ -4,8 +4,10 @@
 //  - cumulative: every pair since the last reset.
 //  - window: the last N pairs. The oldest pair is removed exactly (the inverse of its addition);
 //    to keep rounding from piling up over months of slides, the state is rebuilt from the window's
-//    own pairs after every N removals (amortised cost: one extra addition per pair), so it never
-//    carries the rounding of more than 2N updates.
+//    own pairs after every 4N removals (amortised cost: a quarter of an addition per pair), so it
+//    never carries the rounding of more than 5N updates, nor the cancellation left by a pair of extreme
+//    magnitude (say a misread 1e9 that outlier screening let through) for more than 4N pairs after it
+//    has left the window.
 //  - forgetting: each new pair first multiplies the weight of everything held by lambda; the
 //    effective sample size (1 + lambda) / (1 - lambda) in the limit replaces n (see line_fit.hpp).
 //
@@ -35,6 +37,8 @@ struct MemoryPolicy {
 
 class StreamingLineFit {
  public:
+  static constexpr std::uint64_t rebuild_every_windows = 4;
+
   // weighted: store each pair's weight (needed to remove it from a window later).
   explicit StreamingLineFit(MemoryPolicy policy, bool weighted = false);
 

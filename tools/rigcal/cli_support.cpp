@@ -1,0 +1,48 @@
+#include "cli_support.hpp"
+
+#include <cerrno>
+#include <cstdio>
+#include <cstring>
+#include <fstream>
+#include <iostream>
+#include <sstream>
+
+namespace rigcal::tool {
+
+std::optional<int> parse_command_line(const char* command, const std::string& usage, const Args& args,
+                                      const po::options_description& options,
+                                      const po::positional_options_description& positional,
+                                      po::variables_map& vm) {
+  po::options_description all = options;
+  all.add_options()("help,h", "show this help");
+  try {
+    po::store(po::command_line_parser(args).options(all).positional(positional).run(), vm);
+    if (vm.count("help")) {
+      std::cout << "usage: rigcal " << command << " " << usage << "\n\n" << all << "\n";
+      return exit_ok;
+    }
+    po::notify(vm);
+  } catch (const po::error& e) {
+    std::cerr << "rigcal " << command << ": " << e.what() << "\nusage: rigcal " << command << " " << usage
+              << "  (--help for options)\n";
+    return exit_usage;
+  }
+  return std::nullopt;
+}
+
+std::optional<std::string> read_text_file(const std::string& path, std::string& error) {
+  std::ifstream in(path, std::ios::binary);
+  if (!in) {
+    error = path + ": " + std::strerror(errno);
+    return std::nullopt;
+  }
+  std::ostringstream text;
+  text << in.rdbuf();
+  if (in.bad()) {
+    error = path + ": read error";
+    return std::nullopt;
+  }
+  return text.str();
+}
+
+}  // namespace rigcal::tool

@@ -1,0 +1,22 @@
+#pragma once
+// Helpers the commands share: option parsing with uniform error messages, reading input files.
+#include <boost/program_options.hpp>
+#include <optional>
+#include <string>
+
+#include "command.hpp"
+
+namespace rigcal::tool {
+
+namespace po = boost::program_options;
+
+// Parses `args` into `vm`. On --help prints `usage` and the options and returns exit_ok; on a bad
+// command line prints the problem and returns exit_usage; returns nothing when the command should run.
+std::optional<int> parse_command_line(const char* command, const std::string& usage, const Args& args,
+                                      const po::options_description& options,
+                                      const po::positional_options_description& positional, po::variables_map& vm);
+
+// Whole file as text, or a message naming the file and the OS error.
+std::optional<std::string> read_text_file(const std::string& path, std::string& error);
+
+}  // namespace rigcal::tool
