@@ -1,6 +1,7 @@
 #include "rigcal/stats/line_fit.hpp"
 
 #include <cmath>
+#include <cstdio>
 #include <string>
 
 namespace rigcal::stats {
@@ -13,7 +14,9 @@ bool all_finite(const LineFit& f) {
 }
 
 Error too_few(double n, int needed) {
-  return Error{"too few pairs for a fit with uncertainty: have " + std::to_string(n) + ", need at least " +
+  char have[32];
+  std::snprintf(have, sizeof have, "%.6g", n);
+  return Error{"too few pairs for a fit with uncertainty: have " + std::string(have) + ", need at least " +
                std::to_string(needed)};
 }
 

@@ -1,0 +1,257 @@
+#pragma once
+// rigcald's configuration as an immutable value, loaded in one pass from YAML (loader.hpp).
+//
+// Every field's key, unit, default and constraint is declared once, in daemon/config/schema.hpp;
+// the defaults below are the ones documented there and in config/reference.md, which is
+// generated from the schema (`rigcald --config-reference`) and checked against it by a test.
+#include <cstdint>
+#include <limits>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "rigcal/stats/line_fit.hpp"
+#include "rigcal/stats/streaming_fit.hpp"
+
+namespace rigcal::config {
+
+enum class LogLevel { trace, debug, info, warning, error, critical };
+enum class FsyncPolicy { interval, every_batch };
+enum class SegmentRetention { remove, archive };
+
+struct JournalConfig {
+  FsyncPolicy fsync = FsyncPolicy::interval;
+  int fsync_interval_ms = 20;
+  std::uint64_t segment_bytes = 64ull << 20;
+  SegmentRetention retain = SegmentRetention::remove;
+};
+
+struct TimeRules {
+  double max_future_s = 300;      // a timestamp further ahead of rigcald's clock is rejected
+  double max_backwards_s = 3600;  // a timestamp older than the channel's latest by more is rejected
+};
+
+// An IPv4 or IPv6 network in CIDR form, e.g. 10.20.0.0/16.
+struct Network {
+  std::string text;
+  bool v6 = false;
+  unsigned char bytes[16] = {};
+  int prefix = 0;
+};
+
+struct TlsConfig {
+  std::string certificate_file;
+  std::string private_key_file;
+  std::string client_ca_file;  // when set, senders must present a certificate signed by it
+  bool enabled() const { return !certificate_file.empty(); }
+};
+
+struct TcpInput {
+  std::string name;
+  std::string address = "127.0.0.1";
+  int port = 0;
+  int max_connections = 256;
+  int max_line_bytes = 1024;
+  double idle_timeout_s = 300;
+  std::vector<Network> allow;
+  std::string secret_file;
+  TlsConfig tls;
+};
+
+enum class Parity { none, odd, even };
+enum class StopBits { one, onepointfive, two };
+enum class FlowControl { none, software, hardware };
+
+struct SerialInput {
+  std::string name;
+  std::string device;
+  unsigned baud = 9600;
+  unsigned data_bits = 8;
+  Parity parity = Parity::none;
+  StopBits stop_bits = StopBits::one;
+  FlowControl flow_control = FlowControl::none;
+  int max_line_bytes = 1024;
+  int reopen_initial_ms = 500;
+  int reopen_max_ms = 30000;
+};
+
+struct Inputs {
+  std::vector<TcpInput> tcp;
+  std::vector<SerialInput> serial;
+};
+
+struct HookConfig {
+  std::string program;
+  std::vector<std::string> args;
+  double timeout_s = 10;
+};
+
+struct AlertOutputs {
+  std::string file = "alerts.jsonl";
+  std::optional<HookConfig> hook;
+};
+
+struct HistorianListener {
+  std::string address = "127.0.0.1";
+  int port = 0;
+  int max_subscribers = 16;
+  int queue_records = 10000;
+  std::vector<Network> allow;
+};
+
+struct HistorianOutputs {
+  std::optional<HistorianListener> listen;
+  std::string csv_directory = "historian";
+};
+
+struct RejectOutput {
+  std::string file = "rejects.jsonl";
+  int log_per_minute = 10;
+};
+
+struct Outputs {
+  AlertOutputs alerts;
+  HistorianOutputs historian;
+  RejectOutput rejects;
+};
+
+struct ControlConfig {
+  std::string socket = "control.sock";
+  std::string secret_file;
+};
+
+// --- per channel ---
+
+struct ReferenceStandard {
+  std::string id;
+  double expanded_uncertainty = 0;  // U of the certificate, in the channel's units
+  double coverage_factor = 2;       // k of that U
+  double dof = std::numeric_limits<double>::infinity();
+  double noise_sd = 0;  // random scatter of one reference reading (errors-in-variables fits)
+  double standard_uncertainty() const { return coverage_factor > 0 ? expanded_uncertainty / coverage_factor : 0; }
+};
+
+struct Certificate {
+  std::string id;
+  double intercept = 0;
+  double slope = 1;
+  double u_intercept = 0;
+  double u_slope = 0;
+  double cov = 0;
+};
+
+struct SensorSpec {
+  double resolution = 0;            // smallest step of the indication, channel units
+  std::optional<double> noise_sd;   // standard deviation of one reading; learned when absent
+};
+
+struct Tolerance {
+  double absolute = 0;
+  double percent_of_reading = 0;
+  double percent_of_span = 0;
+  bool configured() const { return absolute > 0 || percent_of_reading > 0 || percent_of_span > 0; }
+};
+
+enum class DecisionRule { simple, guarded };
+
+struct FitConfig {
+  stats::MemoryPolicy::Kind memory = stats::MemoryPolicy::Kind::window;
+  int window_pairs = 1000;
+  double forgetting_factor = 0.999;
+  stats::Model model = stats::Model::line;
+  bool errors_in_variables = false;
+  double confidence = 0.95;
+  bool widen_by_certificate = true;
+  stats::MemoryPolicy policy() const {
+    switch (memory) {
+      case stats::MemoryPolicy::Kind::window: return stats::MemoryPolicy::window(static_cast<std::size_t>(window_pairs));
+      case stats::MemoryPolicy::Kind::forgetting: return stats::MemoryPolicy::forgetting(forgetting_factor);
+      case stats::MemoryPolicy::Kind::cumulative: break;
+    }
+    return stats::MemoryPolicy::cumulative();
+  }
+};
+
+struct ScreeningConfig {
+  bool enabled = true;
+  double limit = 6.0;
+  int max_consecutive = 3;
+};
+
+enum class DetectorKind { interval, cusum, ewma, anytime };
+
+struct DetectorConfig {
+  DetectorKind kind = DetectorKind::cusum;
+  double target_arl0_pairs = 0;             // 0: use the false-alert interval form below
+  double false_alert_interval_days = 365;
+  double pair_rate_hz = 1;
+  double min_slope_change = 0.005;          // fraction of the certified slope
+  std::optional<double> min_offset_change;  // channel units; default: a quarter of the tolerance at mid-range
+  double alpha = 0.001;                     // anytime-valid test: probability of any false alert, ever
+  int learn_pairs = 0;                      // 0: min_pairs
+  double arl0_pairs() const {
+    return target_arl0_pairs > 0 ? target_arl0_pairs : false_alert_interval_days * 86400.0 * pair_rate_hz;
+  }
+};
+
+struct AlertPolicy {
+  std::optional<int> raise_after;  // consecutive evaluations with a finding; default by detector
+  double raise_after_s = 0;
+  int clear_after = 200;
+  double clear_after_s = 0;
+};
+
+struct AveragingConfig {
+  int block_readings = 0;  // close a block after this many readings (0: use time buckets)
+  double bucket_s = 60;    // fixed UTC-aligned buckets when block_readings is 0
+  bool include_pair_readings = false;
+  double coverage_probability = 0.95;
+};
+
+struct ForecastConfig {
+  bool enabled = true;
+  double snapshot_interval_s = 86400;
+  int min_snapshots = 5;
+  double warn_before_days = 30;
+};
+
+struct ChannelConfig {
+  std::string id;
+  std::string description;
+  std::string units;
+  ReferenceStandard reference;
+  Certificate certificate;
+  SensorSpec sensor;
+  std::optional<double> range_low, range_high;  // reference values over which the sensor is used
+  Tolerance tolerance;
+  DecisionRule decision_rule = DecisionRule::guarded;
+  std::optional<double> guard_band;  // default: the expanded uncertainty of the error
+  FitConfig fit;
+  int min_pairs = 30;
+  ScreeningConfig screening;
+  DetectorConfig detector;
+  AlertPolicy alert;
+  AveragingConfig averaging;
+  ForecastConfig forecast;
+
+  int raise_after() const {
+    if (alert.raise_after) return *alert.raise_after;
+    return detector.kind == DetectorKind::interval ? default_interval_raise_after : 1;
+  }
+  static constexpr int default_interval_raise_after = 25;
+};
+
+struct Config {
+  std::string file;  // where it was loaded from (for messages)
+  LogLevel log_level = LogLevel::info;
+  std::string state_directory = "/var/lib/rigcald";
+  JournalConfig journal;
+  double checkpoint_interval_s = 300;
+  TimeRules time;
+  ControlConfig control;
+  Inputs inputs;
+  Outputs outputs;
+  std::vector<ChannelConfig> channels;
+};
+
+}  // namespace rigcal::config
