@@ -1,0 +1,15 @@
+#pragma once
+// Numbers in error messages: 7 significant digits, enough to show a range limit such as 54.88636 mV
+// next to an offending reading, and "nan"/"inf" spelled out for non-finite input.
+#include <cstdio>
+#include <string>
+
+namespace rigcal::metrology::detail {
+
+inline std::string number_text(double v) {
+  char buf[32];
+  std::snprintf(buf, sizeof buf, "%.7g", v);
+  return buf;
+}
+
+}  // namespace rigcal::metrology::detail
