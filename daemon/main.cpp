@@ -12,7 +12,7 @@
 #include "service/run.hpp"
 
 namespace po = boost::program_options;
-using rigcal::service::exit_code;
+namespace exit_code = rigcal::service::exit_code;
 
 namespace {
 

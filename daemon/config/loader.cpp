@@ -92,6 +92,11 @@ void validate_channel(const ChannelConfig& ch, const std::string& p, ReadContext
     if (ch.fit.model != stats::Model::line)
       ctx.error_at_path(p + ".fit.errors_in_variables", "is available for the line model only");
   }
+  for (const auto& [lin, where] : {std::pair{&ch.sensor.linearisation, ".sensor.linearisation"},
+                                   std::pair{&ch.reference.linearisation, ".reference.linearisation"}}) {
+    if (lin->kind == metrology::Linearisation::Kind::none) continue;
+    if (auto st = metrology::check_linearisation(*lin); !st) ctx.error_at_path(p + where, st.error().message);
+  }
   const bool sequential = ch.detector.kind != DetectorKind::interval;
   if (sequential && !ch.detector.min_offset_change && !ch.tolerance.configured())
     ctx.error_at_path(p + ".detector", "give min_offset_change, or a tolerance to derive it from");

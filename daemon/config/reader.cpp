@@ -35,31 +35,6 @@ void ReadContext::error_at_path(const std::string& path, std::string message) {
   error(YAML::Mark::null_mark(), path, std::move(message));
 }
 
-std::string describe_range(const schema::Range& r, bool integer) {
-  std::ostringstream s;
-  s << (integer ? "an integer" : "a number");
-  const bool has_lo = std::isfinite(r.lo), has_hi = std::isfinite(r.hi);
-  if (has_lo && has_hi) {
-    if (!r.lo_open && !r.hi_open) {
-      s << " from " << r.lo << " to " << r.hi;
-    } else {
-      s << (r.lo_open ? " greater than " : " at least ") << r.lo << (r.hi_open ? " and less than " : " and at most ")
-        << r.hi;
-    }
-  } else if (has_lo) {
-    s << (r.lo_open ? " greater than " : " at least ") << r.lo;
-  } else if (has_hi) {
-    s << (r.hi_open ? " less than " : " at most ") << r.hi;
-  }
-  return s.str();
-}
-
-bool in_range(const schema::Range& r, double v) {
-  if (r.lo_open ? !(v > r.lo) : !(v >= r.lo)) return false;
-  if (r.hi_open ? !(v < r.hi) : !(v <= r.hi)) return false;
-  return true;
-}
-
 std::optional<Network> parse_network(const std::string& text) {
   Network n;
   n.text = text;

@@ -12,7 +12,7 @@
 #include <vector>
 
 #include "rigcal/config/loader.hpp"
-#include "schema.hpp"
+#include "rigcal/config/schema.hpp"
 
 namespace rigcal::config {
 
@@ -26,8 +26,8 @@ struct ReadContext {
   void error_at_path(const std::string& path, std::string message);
 };
 
-std::string describe_range(const schema::Range& r, bool integer);
-bool in_range(const schema::Range& r, double v);
+using schema::describe_range;
+using schema::in_range;
 std::optional<Network> parse_network(const std::string& text);
 std::string suggest_key(const std::string& unknown, const std::vector<std::string>& known);
 

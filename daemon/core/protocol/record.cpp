@@ -109,6 +109,20 @@ bool parse_value(std::string_view tok, const char* field, double& out, DecodeRes
 
 }  // namespace
 
+std::optional<std::uint64_t> peek_sequence(std::string_view line) {
+  std::size_t pos = 0;
+  while (pos < line.size() && (line[pos] == ' ' || line[pos] == '\t')) ++pos;
+  if (pos >= line.size() || line[pos] != '@') return std::nullopt;
+  std::size_t end = pos + 1;
+  while (end < line.size() && line[end] >= '0' && line[end] <= '9') ++end;
+  if (end == pos + 1 || end - pos - 1 > 19 || (end < line.size() && line[end] != ' ' && line[end] != '\t'))
+    return std::nullopt;
+  std::uint64_t seq = 0;
+  const auto [p, ec] = std::from_chars(line.data() + pos + 1, line.data() + end, seq);
+  if (ec != std::errc{} || seq == 0 || seq > static_cast<std::uint64_t>(INT64_MAX)) return std::nullopt;
+  return seq;
+}
+
 DecodeResult decode_record(std::string_view line) {
   const int bytes = classify_bytes(line);
   if (bytes == -2) return reject(RejectReason::bad_utf8, "the line is not valid UTF-8");

@@ -10,6 +10,7 @@
 #include <string>
 #include <vector>
 
+#include "rigcal/metrology/linearisation.hpp"
 #include "rigcal/stats/line_fit.hpp"
 #include "rigcal/stats/streaming_fit.hpp"
 
@@ -128,6 +129,7 @@ struct ReferenceStandard {
   double coverage_factor = 2;       // k of that U
   double dof = std::numeric_limits<double>::infinity();
   double noise_sd = 0;  // random scatter of one reference reading (errors-in-variables fits)
+  metrology::Linearisation linearisation;  // when the reference reports a raw signal
   double standard_uncertainty() const { return coverage_factor > 0 ? expanded_uncertainty / coverage_factor : 0; }
 };
 
@@ -141,6 +143,7 @@ struct Certificate {
 };
 
 struct SensorSpec {
+  metrology::Linearisation linearisation;  // raw signal -> channel units, before the fit
   double resolution = 0;            // smallest step of the indication, channel units
   std::optional<double> noise_sd;   // standard deviation of one reading; learned when absent
 };

@@ -11,6 +11,7 @@
 #include <vector>
 
 #include "rigcal/config/config.hpp"
+#include "rigcal/config/fingerprint.hpp"
 
 namespace rigcal::config {
 
@@ -30,12 +31,5 @@ struct LoadResult {
 };
 
 LoadResult load_config(std::string_view yaml_text, const std::string& file_name);
-
-// The configuration reference (Markdown), generated from the same schema the loader reads with.
-std::string config_reference_markdown();
-
-// A fingerprint of one channel's configuration: equal fingerprints mean an identical channel, so a
-// reload (or a restart) keeps its state; any difference restarts its fit.
-std::uint64_t channel_fingerprint(const ChannelConfig& c);
 
 }  // namespace rigcal::config

@@ -43,6 +43,9 @@ struct DecodeResult {
 // Decodes one line (without its line ending). Views in the result point into `line`.
 DecodeResult decode_record(std::string_view line);
 
+// The @SEQ of a line, if it starts with a well-formed one (used to answer REJ for a malformed record).
+std::optional<std::uint64_t> peek_sequence(std::string_view line);
+
 // True if every byte sequence is well-formed UTF-8 (no overlongs, surrogates or code points > U+10FFFF).
 bool is_valid_utf8(std::string_view s);
 

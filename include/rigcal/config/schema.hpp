@@ -1,7 +1,8 @@
 #pragma once
 // The configuration schema: every key, its type, unit, range, default and meaning, declared once.
-// A visitor walks these declarations: YamlReader (reader.hpp) reads and validates a file with them,
-// ReferenceWriter (reference.cpp) writes the Markdown reference, FingerprintWriter hashes a channel.
+// A visitor walks these declarations: YamlReader (daemon/config/reader.hpp) reads and validates a
+// file with them, ReferenceWriter (daemon/core/config/reference.cpp) writes the Markdown reference,
+// FingerprintWriter hashes a channel.
 // Defaults are the member initialisers of the structs in rigcal/config/config.hpp.
 //
 // Visitor interface (V):
@@ -13,6 +14,7 @@
 //   networks(key, std::vector<Network>&, doc)   number_pair(key, lo&, hi&, unit, doc)
 //   section(key, T&, doc)  optional_section(key, std::optional<T>&, doc)  list(key, std::vector<T>&, doc)
 #include <initializer_list>
+#include <string>
 #include <limits>
 #include <type_traits>
 
@@ -43,6 +45,10 @@ template <class E>
 using Options = std::type_identity_t<std::initializer_list<Option<E>>>;
 
 inline constexpr const char* no_unit = "";
+
+// "an integer from 1 to 65535", "a number greater than 0": the expected form in messages and docs.
+std::string describe_range(const Range& r, bool integer);
+bool in_range(const Range& r, double v);
 
 template <class V>
 void describe(V& v, JournalConfig& c) {
@@ -182,6 +188,34 @@ void describe(V& v, Outputs& c) {
 // ---- channels ----
 
 template <class V>
+void describe(V& v, metrology::Linearisation& c) {
+  using K = metrology::Linearisation::Kind;
+  v.choice("kind", c.kind,
+           Options<K>{{"none", K::none, "values already in channel units"},
+                      {"thermocouple", K::thermocouple, "emf in mV, ITS-90 reference function (IEC 60584-1)"},
+                      {"rtd", K::rtd, "resistance in ohm, Callendar-Van Dusen (IEC 60751)"},
+                      {"current_loop", K::current_loop, "4-20 mA loop current, NAMUR NE 43 signal levels"}},
+           "how the raw signal becomes channel units");
+  v.choice("thermocouple_type", c.thermocouple_type,
+           Options<metrology::ThermocoupleType>{{"K", metrology::ThermocoupleType::K, ""},
+                                                {"J", metrology::ThermocoupleType::J, ""},
+                                                {"T", metrology::ThermocoupleType::T, ""}},
+           "thermocouple type (kind: thermocouple)");
+  v.number("cold_junction_c", c.cold_junction_c, any, "degC", "reference-junction temperature (kind: thermocouple)",
+           Need::optional);
+  v.number("r0_ohm", c.r0_ohm, positive, "ohm", "resistance at 0 degC: 100 for Pt100, 1000 for Pt1000 (kind: rtd)",
+           Need::optional);
+  v.number("cvd_a", c.cvd.a_per_c, any, "1/degC", "Callendar-Van Dusen A (kind: rtd; default IEC 60751)",
+           Need::optional);
+  v.number("cvd_b", c.cvd.b_per_c2, any, "1/degC^2", "Callendar-Van Dusen B", Need::optional);
+  v.number("cvd_c", c.cvd.c_per_c4, any, "1/degC^4", "Callendar-Van Dusen C (below 0 degC only)", Need::optional);
+  v.number("value_at_4ma", c.loop_range.value_at_4ma, any, "channel units", "value at 4 mA (kind: current_loop)",
+           Need::optional);
+  v.number("value_at_20ma", c.loop_range.value_at_20ma, any, "channel units", "value at 20 mA (kind: current_loop)",
+           Need::optional);
+}
+
+template <class V>
 void describe(V& v, ReferenceStandard& c) {
   v.text("id", c.id, "identifier of the reference standard (asset tag or certificate number)", Need::optional);
   v.number("expanded_uncertainty", c.expanded_uncertainty, non_negative, "channel units",
@@ -191,6 +225,7 @@ void describe(V& v, ReferenceStandard& c) {
            "effective degrees of freedom of the certificate's uncertainty (absent: infinite)", Need::optional);
   v.number("noise_sd", c.noise_sd, non_negative, "channel units",
            "random scatter of one reference reading (needed by fit.errors_in_variables)", Need::optional);
+  v.section("linearisation", c.linearisation, "when the reference reports a raw signal (mV, ohm, mA)");
 }
 
 template <class V>
@@ -207,6 +242,7 @@ void describe(V& v, Certificate& c) {
 
 template <class V>
 void describe(V& v, SensorSpec& c) {
+  v.section("linearisation", c.linearisation, "when the sensor reports a raw signal (mV, ohm, mA)");
   v.number("resolution", c.resolution, non_negative, "channel units",
            "smallest step of the sensor's indication (rectangular uncertainty resolution/sqrt(12))", Need::optional);
   v.optional_number("noise_sd", c.noise_sd, positive, "channel units",

@@ -3,11 +3,46 @@
 #include <cstdio>
 #include <sstream>
 
-#include "reader.hpp"
+#include <cmath>
+#include <optional>
+#include <vector>
+
+#include "rigcal/config/fingerprint.hpp"
+#include "rigcal/config/schema.hpp"
 
 namespace rigcal::config {
 
+namespace schema {
+std::string describe_range(const Range& r, bool integer) {
+  std::ostringstream s;
+  s << (integer ? "an integer" : "a number");
+  const bool has_lo = std::isfinite(r.lo), has_hi = std::isfinite(r.hi);
+  if (has_lo && has_hi) {
+    if (!r.lo_open && !r.hi_open) {
+      s << " from " << r.lo << " to " << r.hi;
+    } else {
+      s << (r.lo_open ? " greater than " : " at least ") << r.lo << (r.hi_open ? " and less than " : " and at most ")
+        << r.hi;
+    }
+  } else if (has_lo) {
+    s << (r.lo_open ? " greater than " : " at least ") << r.lo;
+  } else if (has_hi) {
+    s << (r.hi_open ? " less than " : " at most ") << r.hi;
+  }
+  return s.str();
+}
+
+bool in_range(const Range& r, double v) {
+  if (r.lo_open ? !(v > r.lo) : !(v >= r.lo)) return false;
+  if (r.hi_open ? !(v < r.hi) : !(v <= r.hi)) return false;
+  return true;
+}
+
+}  // namespace schema
+
 namespace {
+
+using schema::describe_range;
 
 std::string number_text(double v) {
   if (std::isinf(v)) return v > 0 ? "infinite" : "-infinite";

@@ -1,0 +1,340 @@
+#include "rigcal/engine/drift_monitor.hpp"
+
+#include <algorithm>
+#include <cmath>
+
+namespace rigcal::engine {
+
+namespace {
+
+const char* kind_name(config::DetectorKind k) {
+  switch (k) {
+    case config::DetectorKind::interval: return "interval";
+    case config::DetectorKind::cusum: return "cusum";
+    case config::DetectorKind::ewma: return "ewma";
+    case config::DetectorKind::anytime: return "anytime";
+  }
+  return "interval";
+}
+
+// The smallest offset change worth catching: configured, or a quarter of the maximum permissible
+// error at mid-range (common practice, no source: a detector should act well inside the tolerance).
+double min_offset_change(const config::ChannelConfig& c) {
+  if (c.detector.min_offset_change) return *c.detector.min_offset_change;
+  const double lo = c.range_low.value_or(0), hi = c.range_high.value_or(0);
+  const double mid = 0.5 * (lo + hi);
+  const double mpe = c.tolerance.absolute + c.tolerance.percent_of_reading / 100.0 * std::abs(mid) +
+                     c.tolerance.percent_of_span / 100.0 * (hi - lo);
+  return 0.25 * mpe;
+}
+
+std::size_t learn_pairs(const config::ChannelConfig& c) {
+  return static_cast<std::size_t>(std::max(c.detector.learn_pairs > 0 ? c.detector.learn_pairs : c.min_pairs, 3));
+}
+
+}  // namespace
+
+DriftMonitor::DriftMonitor(const config::ChannelConfig& cfg, EngineTables& tables)
+    : cfg_(cfg), tables_(tables), t_(tables.t(cfg.fit.confidence)) {
+  line_ = stats::CertifiedLine{cfg.certificate.intercept, cfg.certificate.slope, cfg.certificate.u_intercept,
+                               cfg.certificate.u_slope, cfg.certificate.cov};
+  design_.kind = kind_name(cfg.detector.kind);
+}
+
+const char* DriftMonitor::phase_name() const {
+  switch (phase_) {
+    case Phase::waiting: return "waiting for min_pairs";
+    case Phase::learning: return "learning";
+    case Phase::monitoring: return "monitoring";
+    case Phase::unavailable: return "unavailable";
+  }
+  return "";
+}
+
+void DriftMonitor::reset() {
+  phase_ = Phase::waiting;
+  unavailable_reason_.clear();
+  learn_x_.clear();
+  const std::string kind = design_.kind;
+  design_ = DriftDesign{};
+  design_.kind = kind;
+  innovations_.reset();
+  cusum_offset_.reset();
+  cusum_slope_.reset();
+  ewma_offset_.reset();
+  ewma_slope_.reset();
+  mixture_.reset();
+}
+
+DriftFinding DriftMonitor::update(double x, double y, const Result<stats::LineFit>& fit) {
+  if (cfg_.detector.kind == config::DetectorKind::interval) return interval_rule(fit);
+  switch (phase_) {
+    case Phase::waiting:
+    case Phase::learning:
+      if (phase_ == Phase::waiting) {
+        phase_ = Phase::learning;
+        phase_changed_ = true;
+      }
+      learn_x_.push_back(x);
+      if (learn_x_.size() >= learn_pairs(cfg_)) finish_learning(fit);
+      return {};
+    case Phase::unavailable:
+      return {};
+    case Phase::monitoring:
+      break;
+  }
+  return sequential(x, y);
+}
+
+DriftFinding DriftMonitor::interval_rule(const Result<stats::LineFit>& fit) {
+  if (!fit.ok() || fit->count < static_cast<std::uint64_t>(cfg_.min_pairs)) return {};
+  if (phase_ != Phase::monitoring) {
+    phase_ = Phase::monitoring;
+    phase_changed_ = true;
+  }
+  const auto v = stats::judge_against_certificate(fit.value(), line_, t_, cfg_.fit.widen_by_certificate);
+  DriftFinding f;
+  f.evaluated = true;
+  f.present = !(v.joint_consistent && v.slope_consistent && v.intercept_consistent);
+  if (!v.joint_consistent) {
+    f.test = "joint";
+    f.statistic = v.joint_statistic;
+    f.threshold = v.joint_critical;
+  } else if (!v.slope_consistent) {
+    f.test = "slope";
+    f.statistic = std::abs(v.slope_deviation);
+    f.threshold = v.slope_limit;
+  } else if (!v.intercept_consistent) {
+    f.test = "intercept";
+    f.statistic = std::abs(v.intercept_deviation);
+    f.threshold = v.intercept_limit;
+  } else {
+    f.test = "joint";
+    f.statistic = v.joint_statistic;
+    f.threshold = v.joint_critical;
+  }
+  return f;
+}
+
+void DriftMonitor::finish_learning(const Result<stats::LineFit>& fit) {
+  auto fail = [this](std::string why) {
+    phase_ = Phase::unavailable;
+    phase_changed_ = true;
+    unavailable_reason_ = std::move(why);
+    learn_x_.clear();
+    learn_x_.shrink_to_fit();
+  };
+  auto centre = detect::reference_centre(learn_x_);
+  if (!centre) return fail("cannot learn the reference centre: " + centre.error().message);
+  design_.centre = centre.value();
+  if (cfg_.sensor.noise_sd) {
+    design_.sigma = *cfg_.sensor.noise_sd;
+  } else {
+    if (!fit.ok()) return fail("cannot learn the sensor noise: " + fit.error().message);
+    const double floor = cfg_.sensor.resolution / std::sqrt(12.0);
+    design_.sigma = std::max(fit->s, floor);
+    design_.sigma_learned = true;
+    if (!(design_.sigma > 0))
+      return fail("cannot learn the sensor noise: the residual SD is zero; configure sensor.noise_sd");
+  }
+  learn_x_.clear();
+  learn_x_.shrink_to_fit();
+  start_detectors();
+}
+
+void DriftMonitor::start_detectors() {
+  const double sigma = design_.sigma;
+  const double offset_change = min_offset_change(cfg_);
+  const double slope_change = cfg_.detector.min_slope_change * std::abs(cfg_.certificate.slope);
+  design_.offset_shift_sigma = offset_change / sigma;
+  design_.slope_shift_sigma = detect::slope_shift_sigma(slope_change, design_.centre, sigma);
+  const double arl0 = cfg_.detector.arl0_pairs();
+  design_.arl0_pairs = arl0;
+  auto fail = [this](std::string why) {
+    phase_ = Phase::unavailable;
+    phase_changed_ = true;
+    unavailable_reason_ = std::move(why);
+  };
+  innovations_.emplace(line_, sigma, design_.centre);
+  // Two detectors in parallel: each is designed for twice the channel's ARL0, so that together they
+  // give one false alert per `arl0` pairs. The slope detector sees about one innovation per two pairs,
+  // so its target in innovations is `arl0` (= 2 arl0 pairs).
+  switch (cfg_.detector.kind) {
+    case config::DetectorKind::cusum: {
+      const auto& off = tables_.cusum(2 * arl0, design_.offset_shift_sigma);
+      const auto& sl = tables_.cusum(arl0, design_.slope_shift_sigma);
+      if (!off) return fail("offset CUSUM design: " + off.error().message);
+      if (!sl) return fail("slope CUSUM design: " + sl.error().message);
+      design_.k_offset = off->k;
+      design_.h_offset = off->h;
+      design_.k_slope = sl->k;
+      design_.h_slope = sl->h;
+      design_.arl1_offset_pairs = off->arl1;
+      design_.arl1_slope_pairs = 2 * sl->arl1;
+      cusum_offset_.emplace(off->k, off->h, 2 * off->h);
+      cusum_slope_.emplace(sl->k, sl->h, 2 * sl->h);
+      break;
+    }
+    case config::DetectorKind::ewma: {
+      const auto& off = tables_.ewma(2 * arl0, design_.offset_shift_sigma);
+      const auto& sl = tables_.ewma(arl0, design_.slope_shift_sigma);
+      if (!off) return fail("offset EWMA design: " + off.error().message);
+      if (!sl) return fail("slope EWMA design: " + sl.error().message);
+      design_.lambda_offset = off->lambda;
+      design_.L_offset = off->L;
+      design_.lambda_slope = sl->lambda;
+      design_.L_slope = sl->L;
+      design_.arl1_offset_pairs = off->arl1;
+      design_.arl1_slope_pairs = 2 * sl->arl1;
+      ewma_offset_.emplace(off->lambda, off->L);
+      ewma_slope_.emplace(sl->lambda, sl->L);
+      break;
+    }
+    case config::DetectorKind::anytime: {
+      const double shift = detect::line_shift_sigma(offset_change, 0.0, design_.centre, sigma);
+      const auto& d = tables_.mixture(cfg_.detector.alpha, shift);
+      if (!d) return fail("anytime-valid test design: " + d.error().message);
+      design_.rho = d->rho;
+      design_.alpha = cfg_.detector.alpha;
+      design_.arl0_pairs = 0;  // not an ARL design: P(any false alert) <= alpha
+      design_.arl1_offset_pairs = d->detection_pairs;
+      mixture_.emplace(cfg_.detector.alpha, d->rho);
+      break;
+    }
+    case config::DetectorKind::interval:
+      break;
+  }
+  phase_ = Phase::monitoring;
+  phase_changed_ = true;
+}
+
+DriftFinding DriftMonitor::sequential(double x, double y) {
+  const detect::Innovations in = innovations_->next(x, y);
+  DriftFinding f;
+  f.evaluated = true;
+  auto pick = [&f](bool off_alarm, bool sl_alarm, double off_stat, double off_thr, double sl_stat, double sl_thr) {
+    f.present = off_alarm || sl_alarm;
+    const bool slope_leads = sl_thr > 0 && off_thr > 0 && sl_stat / sl_thr > off_stat / off_thr;
+    f.test = off_alarm && sl_alarm ? "offset+slope" : (sl_alarm || (!off_alarm && slope_leads) ? "slope" : "offset");
+    const bool use_slope = sl_alarm && !off_alarm ? true : (!off_alarm && !sl_alarm && slope_leads);
+    f.statistic = use_slope ? sl_stat : off_stat;
+    f.threshold = use_slope ? sl_thr : off_thr;
+  };
+  if (cusum_offset_) {
+    cusum_offset_->update(in.offset);
+    if (in.slope) cusum_slope_->update(*in.slope);
+    pick(cusum_offset_->in_alarm(), cusum_slope_->in_alarm(),
+         std::max(cusum_offset_->upper(), cusum_offset_->lower()), cusum_offset_->h(),
+         std::max(cusum_slope_->upper(), cusum_slope_->lower()), cusum_slope_->h());
+  } else if (ewma_offset_) {
+    ewma_offset_->update(in.offset);
+    if (in.slope) ewma_slope_->update(*in.slope);
+    pick(ewma_offset_->in_alarm(), ewma_slope_->in_alarm(), std::abs(ewma_offset_->statistic()),
+         ewma_offset_->limit(), std::abs(ewma_slope_->statistic()), ewma_slope_->limit());
+  } else if (mixture_) {
+    mixture_->update(in.offset, in.d);
+    f.present = mixture_->rejected();
+    f.test = "line";
+    f.statistic = mixture_->log_martingale();
+    f.threshold = mixture_->log_threshold();
+  }
+  return f;
+}
+
+double DriftMonitor::statistic_offset() const {
+  if (cusum_offset_) return std::max(cusum_offset_->upper(), cusum_offset_->lower());
+  if (ewma_offset_) return ewma_offset_->statistic();
+  if (mixture_) return mixture_->log_martingale();
+  return 0;
+}
+
+double DriftMonitor::statistic_slope() const {
+  if (cusum_slope_) return std::max(cusum_slope_->upper(), cusum_slope_->lower());
+  if (ewma_slope_) return ewma_slope_->statistic();
+  return 0;
+}
+
+// Checkpoint layout: phase, learned x values, the learned design inputs (sigma, centre), then the
+// detector states. Designs are rebuilt from EngineTables, which are deterministic.
+void DriftMonitor::save(state::BinaryWriter& w) const {
+  w.u8(static_cast<std::uint8_t>(phase_));
+  w.text(unavailable_reason_);
+  w.u64(learn_x_.size());
+  for (double x : learn_x_) w.f64(x);
+  w.f64(design_.sigma);
+  w.boolean(design_.sigma_learned);
+  w.f64(design_.centre.x_centre);
+  w.f64(design_.centre.x_spread);
+  w.f64(design_.centre.mean_abs_deviation);
+  const bool running = phase_ == Phase::monitoring && innovations_.has_value();
+  w.boolean(running);
+  if (!running) return;
+  const auto s = innovations_->state();
+  w.u32(s.count);
+  w.u32(static_cast<std::uint32_t>(s.side));
+  for (std::size_t i = 0; i < s.count; ++i) {
+    w.f64(s.held[i].x);
+    w.f64(s.held[i].z);
+  }
+  auto put_cusum = [&w](const std::optional<detect::Cusum>& c) {
+    w.f64(c ? c->state().upper : 0);
+    w.f64(c ? c->state().lower : 0);
+  };
+  put_cusum(cusum_offset_);
+  put_cusum(cusum_slope_);
+  w.f64(ewma_offset_ ? ewma_offset_->state().w : 0);
+  w.f64(ewma_slope_ ? ewma_slope_->state().w : 0);
+  const auto m = mixture_ ? mixture_->state() : detect::NormalMixtureTest::State{};
+  w.u64(m.n);
+  w.f64(m.mean_d);
+  w.f64(m.m2_d);
+  w.f64(m.s0);
+  w.f64(m.s1);
+  w.boolean(m.rejected);
+}
+
+bool DriftMonitor::load(state::BinaryReader& r) {
+  reset();
+  const auto phase = r.u8();
+  if (phase > static_cast<std::uint8_t>(Phase::unavailable)) return false;
+  phase_ = static_cast<Phase>(phase);
+  unavailable_reason_ = r.text(4096);
+  const std::uint64_t n = r.count(8);
+  for (std::uint64_t i = 0; i < n; ++i) learn_x_.push_back(r.f64());
+  design_.sigma = r.f64();
+  design_.sigma_learned = r.boolean();
+  design_.centre.x_centre = r.f64();
+  design_.centre.x_spread = r.f64();
+  design_.centre.mean_abs_deviation = r.f64();
+  const bool running = r.boolean();
+  if (!r.ok()) return false;
+  if (!running) return true;
+  detect::SlopeInnovation::State s;
+  s.count = r.u32();
+  s.side = static_cast<std::int32_t>(r.u32());
+  if (s.count > detect::SlopeInnovation::max_pending) return false;
+  for (std::size_t i = 0; i < s.count; ++i) {
+    s.held[i].x = r.f64();
+    s.held[i].z = r.f64();
+  }
+  detect::Cusum::State co{r.f64(), r.f64()}, cs{r.f64(), r.f64()};
+  detect::Ewma::State eo{r.f64()}, es{r.f64()};
+  detect::NormalMixtureTest::State m;
+  m.n = r.u64();
+  m.mean_d = r.f64();
+  m.m2_d = r.f64();
+  m.s0 = r.f64();
+  m.s1 = r.f64();
+  m.rejected = r.boolean();
+  if (!r.ok() || !(design_.sigma > 0)) return false;
+  start_detectors();  // rebuilds the designed detectors, then their states are restored
+  if (phase_ != Phase::monitoring) return true;
+  if (!innovations_->restore(s)) return false;
+  if (cusum_offset_ && (!cusum_offset_->restore(co) || !cusum_slope_->restore(cs))) return false;
+  if (ewma_offset_ && (!ewma_offset_->restore(eo) || !ewma_slope_->restore(es))) return false;
+  if (mixture_ && !mixture_->restore(m)) return false;
+  phase_changed_ = false;
+  return true;
+}
+
+}  // namespace rigcal::engine

@@ -1,0 +1,159 @@
+#include "historian_server.hpp"
+
+#include <boost/asio/write.hpp>
+#include <spdlog/spdlog.h>
+
+#include "network.hpp"
+
+namespace rigcal::io {
+
+namespace asio = boost::asio;
+using asio::ip::tcp;
+
+class HistorianSubscriber : public std::enable_shared_from_this<HistorianSubscriber> {
+ public:
+  HistorianSubscriber(HistorianServer& owner, tcp::socket socket, std::string peer)
+      : owner_(owner), socket_(std::move(socket)), peer_(std::move(peer)) {}
+
+  void start() { do_read(); }
+
+  void push(std::shared_ptr<const std::string> line) {
+    if (closed_) return;
+    if (queue_.size() >= static_cast<std::size_t>(owner_.cfg_.queue_records)) {
+      // Drop the oldest queued line that is not already being written.
+      const std::size_t victim = writing_ ? 1 : 0;
+      if (queue_.size() > victim) {
+        queue_.erase(queue_.begin() + static_cast<std::ptrdiff_t>(victim));
+        ++dropped_;
+        ++owner_.counters_.historian_dropped;
+      }
+    }
+    queue_.push_back(std::move(line));
+    if (!writing_) do_write();
+  }
+
+  void close() {
+    if (closed_) return;
+    closed_ = true;
+    boost::system::error_code ignored;
+    socket_.shutdown(tcp::socket::shutdown_both, ignored);
+    socket_.close(ignored);
+  }
+
+ private:
+  // Subscribers send nothing; reading only notices when they go away.
+  void do_read() {
+    auto self = shared_from_this();
+    socket_.async_read_some(asio::buffer(sink_), [this, self](boost::system::error_code ec, std::size_t) {
+      if (closed_) return;
+      if (ec) return finish();
+      do_read();
+    });
+  }
+
+  void do_write() {
+    if (closed_) return;
+    if (dropped_ > 0 && !writing_gap_) {
+      gap_ = "{\"type\":\"gap\",\"dropped\":" + std::to_string(dropped_) + "}\n";
+      dropped_ = 0;
+      writing_gap_ = true;
+      writing_ = true;
+      auto self = shared_from_this();
+      asio::async_write(socket_, asio::buffer(gap_), [this, self](boost::system::error_code ec, std::size_t) {
+        writing_gap_ = false;
+        writing_ = false;
+        if (ec) return finish();
+        if (!queue_.empty()) do_write();
+      });
+      return;
+    }
+    if (queue_.empty()) {
+      writing_ = false;
+      return;
+    }
+    writing_ = true;
+    current_ = *queue_.front() + "\n";
+    auto self = shared_from_this();
+    asio::async_write(socket_, asio::buffer(current_), [this, self](boost::system::error_code ec, std::size_t) {
+      if (ec) return finish();
+      if (!queue_.empty()) queue_.pop_front();
+      writing_ = false;
+      if (!queue_.empty() || dropped_ > 0) do_write();
+    });
+  }
+
+  void finish() {
+    if (closed_) return;
+    close();
+    spdlog::info("historian subscriber {} disconnected", peer_);
+    owner_.subscribers_.erase(shared_from_this());
+  }
+
+  HistorianServer& owner_;
+  tcp::socket socket_;
+  std::string peer_;
+  std::deque<std::shared_ptr<const std::string>> queue_;
+  std::string current_, gap_;
+  std::array<char, 512> sink_{};
+  std::uint64_t dropped_ = 0;
+  bool writing_ = false, writing_gap_ = false, closed_ = false;
+};
+
+HistorianServer::HistorianServer(asio::io_context& io, const config::HistorianListener& cfg, service::Counters& counters)
+    : io_(io), cfg_(cfg), counters_(counters), acceptor_(io) {}
+
+HistorianServer::~HistorianServer() { stop(); }
+
+Status HistorianServer::start() {
+  boost::system::error_code ec;
+  const auto address = asio::ip::make_address(cfg_.address, ec);
+  if (ec) return Error{"historian feed: bad address " + cfg_.address};
+  const tcp::endpoint ep(address, static_cast<unsigned short>(cfg_.port));
+  acceptor_.open(ep.protocol(), ec);
+  if (!ec) acceptor_.set_option(tcp::acceptor::reuse_address(true), ec);
+  if (!ec) acceptor_.bind(ep, ec);
+  if (!ec) acceptor_.listen(asio::socket_base::max_listen_connections, ec);
+  if (ec) return Error{"historian feed (" + endpoint_text(ep) + "): " + ec.message()};
+  do_accept();
+  return ok_status();
+}
+
+void HistorianServer::stop() {
+  stopped_ = true;
+  boost::system::error_code ignored;
+  acceptor_.close(ignored);
+  for (auto& s : subscribers_) s->close();
+  subscribers_.clear();
+}
+
+void HistorianServer::do_accept() {
+  acceptor_.async_accept([this](boost::system::error_code ec, tcp::socket socket) {
+    if (stopped_ || ec == asio::error::operation_aborted) return;
+    if (!ec) {
+      boost::system::error_code e2;
+      const auto peer = socket.remote_endpoint(e2);
+      const std::string who = e2 ? std::string("?") : endpoint_text(peer);
+      if (e2 || !peer_allowed(peer.address(), cfg_.allow)) {
+        spdlog::warn("historian feed: subscriber {} not in the allow list, refused", who);
+        socket.close(e2);
+      } else if (static_cast<int>(subscribers_.size()) >= cfg_.max_subscribers) {
+        ++counters_.historian_subscribers_dropped;
+        spdlog::warn("historian feed: subscriber {} refused, {} already connected", who, subscribers_.size());
+        asio::write(socket, asio::buffer(std::string("{\"type\":\"error\",\"error\":\"too many subscribers\"}\n")), e2);
+        socket.close(e2);
+      } else {
+        auto s = std::make_shared<HistorianSubscriber>(*this, std::move(socket), who);
+        subscribers_.insert(s);
+        spdlog::info("historian subscriber {} connected", who);
+        s->start();
+      }
+    }
+    do_accept();
+  });
+}
+
+void HistorianServer::publish(std::shared_ptr<const std::string> line) {
+  for (auto& s : subscribers_) s->push(line);
+}
+
+}  // namespace rigcal::io
