@@ -42,6 +42,20 @@ inline std::map<std::string, double> read_named_values(const std::string& name) 
   return out;
 }
 
+// Student t critical value t_p(nu) as printed in t_distribution_critical_values.dat (NIST/SEMATECH
+// e-Handbook 1.3.6.7.2) for upper-tail p in {0.90, 0.95, 0.975, 0.99, 0.995, 0.999}; nu as printed
+// (1..30, 40, 60, 100, or infinity).
+inline double printed_t_critical(double nu, double p) {
+  const double columns[] = {0.90, 0.95, 0.975, 0.99, 0.995, 0.999};
+  std::size_t col = 0;
+  while (col < 6 && columns[col] != p) ++col;
+  if (col == 6) throw std::runtime_error("t table has no column for p = " + std::to_string(p));
+  for (const auto& row : read_rows("t_distribution_critical_values.dat")) {
+    if (std::stod(row.at(0)) == nu) return std::stod(row.at(1 + col));
+  }
+  throw std::runtime_error("t table has no row for nu = " + std::to_string(nu));
+}
+
 // Log relative error as NIST StRD defines it: the number of agreeing significant digits.
 inline double log_relative_error(double computed, double certified) {
   if (computed == certified) return 16.0;
