@@ -97,6 +97,8 @@ void validate_channel(const ChannelConfig& ch, const std::string& p, ReadContext
     if (lin->kind == metrology::Linearisation::Kind::none) continue;
     if (auto st = metrology::check_linearisation(*lin); !st) ctx.error_at_path(p + where, st.error().message);
   }
+  if (ch.screening.max_held > ch.screening.episode_pairs)
+    ctx.error_at_path(p + ".screening.max_held", "cannot exceed screening.episode_pairs");
   const bool sequential = ch.detector.kind != DetectorKind::interval;
   if (sequential && !ch.detector.min_offset_change && !ch.tolerance.configured())
     ctx.error_at_path(p + ".detector", "give min_offset_change, or a tolerance to derive it from");

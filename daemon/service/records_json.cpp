@@ -103,6 +103,13 @@ ordered_json alert_json(const engine::AlertEvent& e) {
                     {"ne107", e.ne107},
                     {"message", e.message}};
   if (e.due_by) j["due_by"] = protocol::format_rfc3339(*e.due_by);
+  if (!e.tolerance_verdict.empty())
+    j["tolerance"] = {{"verdict", e.tolerance_verdict},
+                      {"rule", e.tolerance_rule},
+                      {"worst_x", e.worst_x},
+                      {"worst_error", e.worst_error},
+                      {"worst_U", e.worst_expanded},
+                      {"mpe", e.worst_mpe}};
   return j;
 }
 

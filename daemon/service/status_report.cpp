@@ -69,6 +69,50 @@ ordered_json drift_json(const engine::ChannelEngine& ch) {
   return j;
 }
 
+ordered_json tolerance_json(const engine::ChannelEngine& ch) {
+  const auto v = ch.tolerance_verdict();
+  if (!v) return {{"available", false}, {"reason", v.error().message}};
+  ordered_json points = ordered_json::array();
+  for (const auto& p : v->points)
+    points.push_back({{"x", p.error.x},
+                      {"error", p.error.error},
+                      {"u", p.error.u},
+                      {"U", p.error.expanded},
+                      {"mpe", p.mpe},
+                      {"guard_band", p.guard_band},
+                      {"probability_beyond_limit", p.probability_beyond_limit},
+                      {"statement", metrology::to_string(p.statement)}});
+  return {{"available", true},
+          {"verdict", metrology::to_string(v->verdict)},
+          {"rule", v->rule_name},
+          {"rule_description", v->rule_description},
+          {"worst_x", v->worst.error.x},
+          {"worst_error", v->worst.error.error},
+          {"worst_U", v->worst.error.expanded},
+          {"worst_mpe", v->worst.mpe},
+          {"alert", ch.tolerance_alert_raised()},
+          {"points", points}};
+}
+
+ordered_json due_json(const engine::ChannelEngine& ch) {
+  auto one = [](const std::optional<metrology::DueForecast>& f) -> ordered_json {
+    if (!f) return nullptr;
+    ordered_json j = {{"status", metrology::to_string(f->status)}, {"reason", f->reason}, {"snapshots", f->snapshots}};
+    if (f->trend)
+      j["trend_per_day"] = {{"slope", f->trend->slope_per_s * 86400}, {"u_slope", f->trend->u_slope_per_s * 86400}};
+    if (f->crossing) {
+      j["crossing"] = protocol::format_rfc3339(static_cast<protocol::TimeNs>(f->crossing->time_s * 1e9), 0);
+      j["due_by"] = protocol::format_rfc3339(static_cast<protocol::TimeNs>(f->crossing->due_by_s * 1e9), 0);
+    }
+    return j;
+  };
+  const auto due = ch.due_by();
+  return {{"due_by", due ? ordered_json(protocol::format_rfc3339(*due, 0)) : ordered_json()},
+          {"alert", ch.due_alert_raised()},
+          {"range_low", one(ch.due_forecast_low())},
+          {"range_high", one(ch.due_forecast_high())}};
+}
+
 }  // namespace
 
 ordered_json channel_status_json(const engine::ChannelEngine& ch) {
@@ -83,6 +127,8 @@ ordered_json channel_status_json(const engine::ChannelEngine& ch) {
                       {"slope", ch.config().certificate.slope}}},
                     {"fit", fit_json(ch)},
                     {"drift", drift_json(ch)},
+                    {"tolerance", tolerance_json(ch)},
+                    {"calibration_due", due_json(ch)},
                     {"alert", {{"raised", ch.alert_raised()},
                                {"since", ch.alert_raised() ? ordered_json(protocol::format_rfc3339(ch.alert_since()))
                                                            : ordered_json()}}},

@@ -61,6 +61,7 @@ void ChannelEngine::save(state::BinaryWriter& w) const {
     w.f64(x);
     w.f64(y);
   }
+  w.u32(screen_.episode_left());
   w.u64(screen_.held().size());
   for (const HeldPair& p : screen_.held()) {
     w.i64(p.time);
@@ -75,6 +76,18 @@ void ChannelEngine::save(state::BinaryWriter& w) const {
   w.i64(a.since);
   w.boolean(averager_.open().has_value());
   if (averager_.open()) put_block(w, *averager_.open());
+  w.i64(next_snapshot_);
+  w.u64(pairs_since_tolerance_check_);
+  w.boolean(due_alert_);
+  w.boolean(tolerance_alert_);
+  for (const auto* tracker : {&due_low_, &due_high_}) {
+    w.boolean(tracker->has_value());
+    if (!*tracker) continue;
+    const auto st = (*tracker)->state();
+    put_moments(w, st.moments);
+    w.boolean(st.latest_time_s.has_value());
+    w.f64(st.latest_time_s.value_or(0));
+  }
   const ChannelCounters& c = counters_;
   for (std::uint64_t v : {c.pairs, c.pairs_in_fit, c.readings, c.outliers, c.released, c.signal_rejects,
                           c.clock_rejects, c.historian_records, c.alerts_raised, c.alerts_cleared})
@@ -96,13 +109,14 @@ bool ChannelEngine::load(state::BinaryReader& r) {
     ys[i] = r.f64();
   }
   if (!r.ok() || !fit_.restore(m, xs, ys, {}, removals)) return false;
+  const std::uint32_t episode_left = r.u32();
   const std::uint64_t held = r.count(48);
   std::vector<HeldPair> pairs(held);
   for (HeldPair& p : pairs) {
     p.time = r.i64();
     for (double* v : {&p.x, &p.y, &p.x_raw, &p.y_raw, &p.residual}) *v = r.f64();
   }
-  screen_.restore_held(std::move(pairs));
+  screen_.restore(std::move(pairs), episode_left);
   if (!drift_.load(r)) return false;
   AlertMachine::State a;
   a.raised = r.boolean();
@@ -115,6 +129,20 @@ bool ChannelEngine::load(state::BinaryReader& r) {
     averager_.restore(get_block(r));
   } else {
     averager_.clear();
+  }
+  next_snapshot_ = r.i64();
+  pairs_since_tolerance_check_ = r.u64();
+  due_alert_ = r.boolean();
+  tolerance_alert_ = r.boolean();
+  for (auto* tracker : {&due_low_, &due_high_}) {
+    const bool present = r.boolean();
+    if (!present) continue;
+    metrology::DueForecastTracker::State st;
+    st.moments = get_moments(r);
+    const bool has_time = r.boolean();
+    const double latest = r.f64();
+    if (has_time) st.latest_time_s = latest;
+    if (!r.ok() || !*tracker || !(*tracker)->restore(st)) return false;
   }
   ChannelCounters& c = counters_;
   for (std::uint64_t* v : {&c.pairs, &c.pairs_in_fit, &c.readings, &c.outliers, &c.released, &c.signal_rejects,

@@ -22,6 +22,17 @@ AlertTiming timing_of(const config::ChannelConfig& c) {
   return t;
 }
 
+// What a drift finding means, in words.
+std::string finding_text(std::string_view test) {
+  if (test == "offset") return "an offset change";
+  if (test == "slope") return "a slope (gain) change";
+  if (test == "offset+slope") return "offset and slope changes";
+  if (test == "joint") return "the certified line outside the fit's joint confidence region";
+  if (test == "intercept") return "the certified intercept outside the fit's interval";
+  if (test == "line") return "a change of the line (anytime-valid test)";
+  return std::string(test);
+}
+
 std::string fmt(const char* f, double v) {
   char buf[64];
   std::snprintf(buf, sizeof buf, f, v);
@@ -39,11 +50,14 @@ ChannelEngine::ChannelEngine(std::shared_ptr<const config::ChannelConfig> cfg, c
       t_fit_(tables.t(cfg_->fit.confidence)),
       t_cov_(tables.t(cfg_->averaging.coverage_probability)),
       fit_(cfg_->fit.policy(), false),
-      screen_(cfg_->screening.enabled, cfg_->screening.limit, static_cast<std::uint32_t>(cfg_->screening.max_consecutive)),
+      screen_(cfg_->screening.enabled, cfg_->screening.limit, static_cast<std::uint32_t>(cfg_->screening.max_held),
+              static_cast<std::uint32_t>(cfg_->screening.episode_pairs)),
       drift_(*cfg_, tables),
       alert_(timing_of(*cfg_)),
       averager_(static_cast<std::uint64_t>(cfg_->averaging.block_readings),
-                static_cast<std::int64_t>(cfg_->averaging.bucket_s * ns_per_s)) {}
+                static_cast<std::int64_t>(cfg_->averaging.bucket_s * ns_per_s)) {
+  init_tolerance();
+}
 
 bool ChannelEngine::convert(double raw, const metrology::Linearisation& lin, double& out, std::string& why) const {
   if (lin.kind == metrology::Linearisation::Kind::none) {
@@ -106,16 +120,17 @@ void ChannelEngine::on_pair(protocol::TimeNs t, double x_raw, double y_raw, Even
   const auto before = fit_.summary(cfg_->fit.model);
   if (!before) return accept_pair(p, sink);
   p.residual = OutlierScreen::studentised_residual(before.value(), p.x, p.y, cfg_->sensor.resolution / std::sqrt(12.0));
-  if (screen_.offer(p) == OutlierScreen::Verdict::pass) {
-    for (const HeldPair& spike : screen_.take_rejected()) {
-      ++counters_.outliers;
-      reject(spike.time, protocol::RejectReason::outlier,
-             "studentised residual " + fmt("%.3g", spike.residual) + " beyond the screening limit " +
-                 fmt("%g", screen_.limit()) + " and not followed by others",
-             spike.x_raw, spike.y_raw, true, sink);
-    }
-    return accept_pair(p, sink);
+  const auto verdict = screen_.offer(p);
+  for (const HeldPair& spike : screen_.take_rejected()) {
+    ++counters_.outliers;
+    reject(spike.time, protocol::RejectReason::outlier,
+           "studentised residual " + fmt("%.3g", spike.residual) + " beyond the screening limit " +
+               fmt("%g", screen_.limit()) + ", an isolated spike (fewer than " +
+               std::to_string(cfg_->screening.max_held) + " such pairs within " +
+               std::to_string(cfg_->screening.episode_pairs) + ")",
+           spike.x_raw, spike.y_raw, true, sink);
   }
+  if (verdict == OutlierScreen::Verdict::pass) return accept_pair(p, sink);
   const auto released = screen_.take_released();
   counters_.released += released.size();
   for (const HeldPair& q : released) accept_pair(q, sink);
@@ -138,6 +153,7 @@ void ChannelEngine::accept_pair(const HeldPair& p, EventSink& sink) {
       case AlertTransition::none: break;
     }
   }
+  after_pair_checks(p.time, sink);
   if (cfg_->averaging.include_pair_readings) add_reading(p.time, p.y, p.y_raw, sink);
 }
 
@@ -243,27 +259,16 @@ void ChannelEngine::emit_historian(const Block& b, EventSink& sink) {
 }
 
 void ChannelEngine::emit_alert(Transition tr, const DriftFinding& f, protocol::TimeNs t, EventSink& sink) {
-  AlertEvent e;
-  e.channel = cfg_->id;
-  e.time = t;
-  e.kind = AlertKind::drift;
-  e.transition = tr;
+  AlertEvent e = base_event(t, AlertKind::drift, tr);
   e.detector = drift_.design().kind;
   e.test = f.test;
   e.statistic = f.statistic;
   e.threshold = f.threshold;
-  e.fit = calibration();
-  e.certified_b0 = cfg_->certificate.intercept;
-  e.certified_b1 = cfg_->certificate.slope;
   e.ne107 = "maintenance_required";
   const auto fit = fit_summary();
   std::string fitted = "the fit is not determined yet";
   if (fit) {
     const auto ci = stats::coefficient_intervals(fit.value(), t_fit_);
-    e.ci_b0_lo = ci.b0.lo;
-    e.ci_b0_hi = ci.b0.hi;
-    e.ci_b1_lo = ci.b1.lo;
-    e.ci_b1_hi = ci.b1.hi;
     const std::string pct = fmt("%g", cfg_->fit.confidence * 100);
     fitted = "slope " + fmt("%.6g", fit->b1) + " (" + pct + " % interval " + fmt("%.6g", ci.b1.lo) + " to " +
              fmt("%.6g", ci.b1.hi) + ") against certified " + fmt("%.6g", cfg_->certificate.slope) + ", intercept " +
@@ -272,12 +277,15 @@ void ChannelEngine::emit_alert(Transition tr, const DriftFinding& f, protocol::T
              std::to_string(fit->count) + " pairs";
   }
   const std::string cert = cfg_->certificate.id.empty() ? "its certificate" : "certificate " + cfg_->certificate.id;
+  const std::string tolerance =
+      e.tolerance_verdict.empty() ? "" : " Tolerance verdict as found: " + e.tolerance_verdict + " (" + e.tolerance_rule + ").";
   if (tr == Transition::raised) {
     ++counters_.alerts_raised;
-    e.message = cfg_->id + " no longer agrees with " + cert + ": the " + std::string(e.detector) + " detector found a " +
-                std::string(f.test) + " change (statistic " + fmt("%.4g", f.statistic) + ", threshold " +
+    e.message = cfg_->id + " no longer agrees with " + cert + ": the " + std::string(e.detector) + " detector found " +
+                finding_text(f.test) + " (statistic " + fmt("%.4g", f.statistic) + ", threshold " +
                 fmt("%.4g", f.threshold) + "). Current fit: " + fitted +
-                ". Check the sensor against a reference standard (as-found) and recalibrate if the drift is "
+                "." + tolerance +
+                " Check the sensor against a reference standard (as-found) and recalibrate if the drift is "
                 "confirmed. Decision support only; not a safety function.";
   } else {
     ++counters_.alerts_cleared;
@@ -288,6 +296,12 @@ void ChannelEngine::emit_alert(Transition tr, const DriftFinding& f, protocol::T
 }
 
 void ChannelEngine::reset(protocol::TimeNs t, EventSink& sink) {
+  // As-left: the trend of the old calibration says nothing about the new one.
+  if (due_low_) due_low_->reset();
+  if (due_high_) due_high_->reset();
+  next_snapshot_ = 0;
+  pairs_since_tolerance_check_ = 0;
+  due_alert_ = tolerance_alert_ = false;
   const bool was_raised = alert_.raised();
   fit_.reset();
   screen_.clear();
@@ -322,6 +336,11 @@ void ChannelEngine::reset(protocol::TimeNs t, EventSink& sink) {
 namespace rigcal::engine {
 
 void ChannelEngine::restart_fresh() {
+  if (due_low_) due_low_->reset();
+  if (due_high_) due_high_->reset();
+  next_snapshot_ = 0;
+  pairs_since_tolerance_check_ = 0;
+  due_alert_ = tolerance_alert_ = false;
   fit_.reset();
   screen_.clear();
   drift_.reset();

@@ -12,19 +12,22 @@ double OutlierScreen::studentised_residual(const stats::LineFit& fit, double x, 
 }
 
 OutlierScreen::Verdict OutlierScreen::offer(const HeldPair& pair) {
-  if (std::abs(pair.residual) <= limit_) {
-    if (!held_.empty()) {
-      rejected_ = std::move(held_);
+  const bool flagged = std::abs(pair.residual) > limit_;
+  if (flagged) {
+    if (held_.empty()) episode_left_ = episode_pairs_;
+    held_.push_back(pair);
+    if (held_.size() >= max_held_) {
+      released_ = std::move(held_);
       held_.clear();
+      episode_left_ = 0;
+      return Verdict::hold;
     }
-    return Verdict::pass;
   }
-  held_.push_back(pair);
-  if (held_.size() >= max_consecutive_) {
-    released_ = std::move(held_);
+  if (!held_.empty() && --episode_left_ == 0) {
+    rejected_ = std::move(held_);
     held_.clear();
   }
-  return Verdict::hold;
+  return flagged ? Verdict::hold : Verdict::pass;
 }
 
 std::vector<HeldPair> OutlierScreen::take_rejected() {

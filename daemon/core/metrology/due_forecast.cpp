@@ -102,6 +102,13 @@ Status DueForecastTracker::add(double time_s, double error, double u_error) {
   return ok_status();
 }
 
+Status DueForecastTracker::restore(const State& s) {
+  if (s.latest_time_s && !std::isfinite(*s.latest_time_s)) return Error{"forecast state: latest time not finite"};
+  if (auto st = trend_.restore(s.moments, {}, {}, {}, 0); !st) return st;
+  latest_time_s_ = s.latest_time_s;
+  return ok_status();
+}
+
 void DueForecastTracker::reset() {
   trend_.reset();
   latest_time_s_.reset();

@@ -178,7 +178,8 @@ struct FitConfig {
 struct ScreeningConfig {
   bool enabled = true;
   double limit = 6.0;
-  int max_consecutive = 3;
+  int max_held = 3;
+  int episode_pairs = 20;
 };
 
 enum class DetectorKind { interval, cusum, ewma, anytime };

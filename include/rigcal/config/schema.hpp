@@ -289,8 +289,11 @@ void describe(V& v, ScreeningConfig& c) {
   v.flag("enabled", c.enabled, "screen isolated outliers out before they reach the fit and the detectors");
   v.number("limit", c.limit, positive, no_unit,
            "|externally studentised residual| beyond which a pair is held as a possible outlier", Need::optional);
-  v.integer("max_consecutive", c.max_consecutive, Range{1, 1000}, "pairs",
-            "this many held pairs in a row are a real change, not spikes: they are released into the fit",
+  v.integer("max_held", c.max_held, Range{1, 1000}, "pairs",
+            "this many held pairs within one episode are a real change, not spikes: they are released into the fit",
+            Need::optional);
+  v.integer("episode_pairs", c.episode_pairs, Range{1, 100000}, "pairs",
+            "pairs after the first held one within which max_held more make a change; fewer are spikes",
             Need::optional);
 }
 

@@ -20,6 +20,8 @@
 #include "rigcal/engine/engine_tables.hpp"
 #include "rigcal/engine/events.hpp"
 #include "rigcal/engine/outlier_screen.hpp"
+#include "rigcal/metrology/due_forecast.hpp"
+#include "rigcal/metrology/tolerance_verdict.hpp"
 #include "rigcal/state/binary_codec.hpp"
 #include "rigcal/stats/streaming_fit.hpp"
 
@@ -70,6 +72,16 @@ class ChannelEngine {
   const OutlierScreen& screen() const { return screen_; }
   std::uint64_t calibration_version() const { return version_; }
   const stats::TwoSidedT& fit_t() const { return t_fit_; }
+  const stats::TwoSidedT& coverage_t() const { return t_cov_; }
+
+  // Tolerance verdict from the current fit (error when no tolerance is configured or no fit yet).
+  Result<metrology::ToleranceVerdict> tolerance_verdict() const;
+  bool tolerance_alert_raised() const { return tolerance_alert_; }
+  // Calibration-due forecasts at the low and high end of the range (absent without a forecast).
+  std::optional<metrology::DueForecast> due_forecast_low() const;
+  std::optional<metrology::DueForecast> due_forecast_high() const;
+  std::optional<protocol::TimeNs> due_by() const;
+  bool due_alert_raised() const { return due_alert_; }
   void set_time_rules(const config::TimeRules& t) { time_ = t; }
   // A channel whose configuration changed starts over with the next calibration version.
   void set_calibration_version(std::uint64_t v) { version_ = v; }
@@ -85,6 +97,12 @@ class ChannelEngine {
   void add_reading(protocol::TimeNs t, double value, double raw, EventSink& sink);
   void emit_historian(const Block& b, EventSink& sink);
   void notify_phase(protocol::TimeNs t, EventSink& sink);
+  void init_tolerance();
+  void after_pair_checks(protocol::TimeNs t, EventSink& sink);
+  void take_snapshot(protocol::TimeNs t, const stats::LineFit& fit, EventSink& sink);
+  void check_tolerance(protocol::TimeNs t, EventSink& sink);
+  void fill_tolerance(AlertEvent& e) const;
+  AlertEvent base_event(protocol::TimeNs t, AlertKind kind, Transition tr) const;
   void emit_alert(Transition tr, const DriftFinding& f, protocol::TimeNs t, EventSink& sink);
   void reject(protocol::TimeNs t, protocol::RejectReason reason, std::string detail, double x_raw, double y_raw,
               bool pair, EventSink& sink);
@@ -107,6 +125,16 @@ class ChannelEngine {
   std::uint64_t version_ = 1;
   std::uint64_t historian_seq_ = 0;
   std::optional<HistorianRecord> last_record_;
+  // Tolerance and calibration-due forecast (only with a tolerance and a range).
+  bool has_tolerance_ = false;
+  metrology::MaximumPermissibleError mpe_;
+  metrology::SensorRange range_;
+  metrology::ReferenceStandardUncertainty reference_u_;
+  std::optional<metrology::DueForecastTracker> due_low_, due_high_;
+  protocol::TimeNs next_snapshot_ = 0;
+  std::uint64_t pairs_since_tolerance_check_ = 0;
+  bool due_alert_ = false;
+  bool tolerance_alert_ = false;
 };
 
 }  // namespace rigcal::engine

@@ -40,6 +40,10 @@ struct AlertEvent {
   double ci_b0_lo = 0, ci_b0_hi = 0, ci_b1_lo = 0, ci_b1_hi = 0;  // at the channel's confidence
   double certified_b0 = 0, certified_b1 = 0;
   std::optional<protocol::TimeNs> due_by;  // calibration_due: forecast earliest crossing
+  // The tolerance verdict when the event was made (empty when the channel has no tolerance).
+  std::string tolerance_verdict;  // pass, indeterminate, fail
+  std::string tolerance_rule;     // simple acceptance, guarded acceptance
+  double worst_x = 0, worst_error = 0, worst_expanded = 0, worst_mpe = 0;
   std::string_view ne107;                  // NAMUR NE 107 status: maintenance_required, out_of_specification
   std::string message;                     // plain language, for maintenance
 };

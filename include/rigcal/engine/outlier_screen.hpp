@@ -4,10 +4,12 @@
 //
 // Rule: once the fit has its minimum pairs, each new pair's externally studentised prediction
 // residual r = (y - yhat(x)) / (s sqrt(1 + h(x))) is computed against the fit that does not contain
-// it (h the leverage). |r| > limit holds the pair back. If max_consecutive pairs in a row are held,
-// they are a level change, not spikes: all of them are released, in order, into the fit. If a pair
-// with |r| <= limit arrives while some are held, the held ones were isolated spikes and are
-// rejected as outliers (reject reason `outlier`, kept in the reject file).
+// it (h the leverage). |r| > limit holds the pair back and, if none is held yet, opens an episode of
+// `episode_pairs` pairs. If `max_held` pairs are held within the episode, they are a real change, not
+// spikes (a gain change flags the pairs far from the centre while those near it still pass): all of
+// them are released, in order, into the fit. If the episode ends with fewer held, they were isolated
+// spikes and are rejected as outliers (reject reason `outlier`, kept in the reject file). Pairs that
+// pass go on to the fit at once either way.
 // Under normal errors with limit 6 an in-control pair is held with probability ~2e-9.
 #include <cstdint>
 #include <vector>
@@ -26,17 +28,17 @@ struct HeldPair {
 
 class OutlierScreen {
  public:
-  OutlierScreen(bool enabled, double limit, std::uint32_t max_consecutive)
-      : enabled_(enabled), limit_(limit), max_consecutive_(max_consecutive) {}
+  OutlierScreen(bool enabled, double limit, std::uint32_t max_held, std::uint32_t episode_pairs)
+      : enabled_(enabled), limit_(limit), max_held_(max_held), episode_pairs_(episode_pairs) {}
 
   // Studentised prediction residual of (x, y) against `fit`, with a floor on s (the sensor's
   // resolution/sqrt(12)) so that a noiseless fit does not call every step an outlier.
   static double studentised_residual(const stats::LineFit& fit, double x, double y, double s_floor);
 
   enum class Verdict { pass, hold };
-  // Decides about a pair with residual r. On `pass` the caller must first take rejected() (the held
-  // spikes, if any) then process the pair. On `hold` with released() non-empty, the caller processes
-  // released() in order (the held pairs plus this one).
+  // Decides about a pair with residual r. After every offer the caller takes rejected() (spikes
+  // whose episode ended) and, on `pass`, processes the pair; on `hold` with released() non-empty it
+  // processes released() in order (the held pairs, this one last).
   Verdict offer(const HeldPair& pair);
   std::vector<HeldPair> take_rejected();
   std::vector<HeldPair> take_released();
@@ -44,17 +46,24 @@ class OutlierScreen {
   bool enabled() const { return enabled_; }
   double limit() const { return limit_; }
   const std::vector<HeldPair>& held() const { return held_; }
-  void restore_held(std::vector<HeldPair> held) { held_ = std::move(held); }
+  std::uint32_t episode_left() const { return episode_left_; }
+  void restore(std::vector<HeldPair> held, std::uint32_t episode_left) {
+    held_ = std::move(held);
+    episode_left_ = episode_left;
+  }
   void clear() {
     held_.clear();
     rejected_.clear();
     released_.clear();
+    episode_left_ = 0;
   }
 
  private:
   bool enabled_;
   double limit_;
-  std::uint32_t max_consecutive_;
+  std::uint32_t max_held_;
+  std::uint32_t episode_pairs_;
+  std::uint32_t episode_left_ = 0;  // pairs left in the open episode (0: none open)
   std::vector<HeldPair> held_, rejected_, released_;
 };
 

@@ -104,6 +104,14 @@ class DueForecastTracker {
   std::uint64_t snapshots() const { return trend_.moments().count; }
   void reset();
 
+  // The complete state, for checkpoints.
+  struct State {
+    stats::LineMoments moments;
+    std::optional<double> latest_time_s;
+  };
+  State state() const { return {trend_.moments(), latest_time_s_}; }
+  Status restore(const State& s);
+
  private:
   explicit DueForecastTracker(const DueForecastOptions& options);
 
