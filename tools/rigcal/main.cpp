@@ -17,6 +17,7 @@ struct CommandEntry {
 
 constexpr CommandEntry commands[] = {
     {"fit", rigcal::tool::run_fit, "fit a straight-line calibration to a CSV file of reference/sensor pairs"},
+    {"status", rigcal::tool::run_status, "ask a running rigcald where each channel stands"},
 };
 
 void print_usage(std::FILE* out) {
