@@ -12,13 +12,15 @@ namespace rigcal::tool {
 std::optional<int> parse_command_line(const char* command, const std::string& usage, const Args& args,
                                       const po::options_description& options,
                                       const po::positional_options_description& positional,
-                                      po::variables_map& vm) {
+                                      po::variables_map& vm, const std::string& description) {
   po::options_description all = options;
   all.add_options()("help,h", "show this help");
   try {
     po::store(po::command_line_parser(args).options(all).positional(positional).run(), vm);
     if (vm.count("help")) {
-      std::cout << "usage: rigcal " << command << " " << usage << "\n\n" << all << "\n";
+      std::cout << "usage: rigcal " << command << " " << usage << "\n\n";
+      if (!description.empty()) std::cout << description << "\n";
+      std::cout << all << "\n";
       return exit_ok;
     }
     po::notify(vm);

@@ -10,11 +10,13 @@ namespace rigcal::tool {
 
 namespace po = boost::program_options;
 
-// Parses `args` into `vm`. On --help prints `usage` and the options and returns exit_ok; on a bad
-// command line prints the problem and returns exit_usage; returns nothing when the command should run.
+// Parses `args` into `vm`. On --help prints `usage`, `description` (when given) and the options and
+// returns exit_ok; on a bad command line prints the problem and returns exit_usage; returns nothing
+// when the command should run.
 std::optional<int> parse_command_line(const char* command, const std::string& usage, const Args& args,
                                       const po::options_description& options,
-                                      const po::positional_options_description& positional, po::variables_map& vm);
+                                      const po::positional_options_description& positional, po::variables_map& vm,
+                                      const std::string& description = "");
 
 // Whole file as text, or a message naming the file and the OS error.
 std::optional<std::string> read_text_file(const std::string& path, std::string& error);
