@@ -205,7 +205,10 @@ def test_an_unreachable_daemon_fails_with_status_69(tmp_path):
     (["--tcp", "127.0.0.1:7410", "--rate", "5", "--as-fast-as-possible"], 64, "not both"),
     (["--serial", "/dev/null", "--baud", "12345"], 64, "--baud 12345 is not a standard speed"),
     (["--serial", "/dev/null", "--parity", "mark"], 64, "--parity must be none, odd or even, got 'mark'"),
+    (["--serial", "/dev/null", "--stop-bits", "1.5"], 64, "--stop-bits 1.5 cannot be set"),
+    (["--tcp", "127.0.0.1:7410", "--max-unacknowledged", "-1"], 64, "--max-unacknowledged must be a whole number"),
     (["--serial", "/dev/null"], 69, "/dev/null: not a serial device"),
+    (["--serial", "/nonexistent/tty"], 69, "cannot open /nonexistent/tty: No such file or directory"),
 ])
 def test_bad_command_lines_are_named(tmp_path, args, status, message):
     path = tmp_path / "rig.txt"
@@ -274,3 +277,34 @@ def test_help_says_serial_has_no_acknowledgements():
     for option in ["--tcp", "--serial", "--rate", "--as-fast-as-possible", "--stream", "--secret-file",
                    "--ack-timeout", "--show-rejects", "--baud"]:
         assert option in out.stdout
+
+
+def test_rate_paces_the_records(tmp_path, server):
+    srv = server()
+    path = tmp_path / "rig.txt"
+    write_records(path, 60)
+    started = time.time()
+    out = run_rigcal("send", path, "--tcp", srv.address(), "--rate", "100")
+    assert out.returncode == 0, out.stderr
+    assert time.time() - started >= 0.55  # 60 records at 100/s: the last goes 0.59 s after the first
+
+
+def test_an_interrupt_stops_sending_waits_for_acknowledgements_and_the_rest_can_resume(tmp_path, server):
+    srv = server()
+    path = tmp_path / "rig.txt"
+    records = write_records(path, 400)
+    proc = subprocess.Popen([str(RIGCAL), "send", str(path), "--tcp", srv.address(), "--rate", "200"],
+                            stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True)
+    deadline = time.time() + 10
+    while len(srv.stored(default_stream(path))) < 50 and time.time() < deadline:
+        time.sleep(0.01)
+    proc.send_signal(2)  # SIGINT
+    stdout, stderr = proc.communicate(timeout=30)
+    assert proc.returncode == 69
+    sent, acked, rejected, failed = counts(stdout)
+    assert sent == acked and 50 <= acked < 400 and failed == 400 - acked
+    assert "interrupted: waiting up to 10 s for acknowledgements" in stderr
+    resumed = run_rigcal("send", path, "--tcp", srv.address())
+    assert resumed.returncode == 0, resumed.stderr
+    assert counts(resumed.stdout) == (400 - acked, 400 - acked, 0, 0)
+    assert srv.stored(default_stream(path)) == list(enumerate(records, start=1))

@@ -9,6 +9,7 @@ import os
 import pty
 import re
 import threading
+import time
 
 import pytest
 
@@ -151,6 +152,7 @@ def test_bad_scenarios_are_refused_with_file_line_and_column(tmp_path, text, mes
     (["--start", "2026-12-01T10:00:00+02:00"], "--start '2026-12-01T10:00:00+02:00'"),
     (["--seed", "-3"], "--seed must be an integer"),
     (["--duration", "0"], "--duration must be a number of seconds above 0"),
+    (["--records", "-1"], "--records must be a whole number, got '-1'"),
     (["--output", "x.txt", "--tcp", "127.0.0.1:1"], "give one of --output, --tcp and --serial"),
     ([], "the scenario sets no duration_s: give --duration SECONDS or --records N"),
 ])
@@ -167,3 +169,17 @@ def test_unreadable_scenario_and_unwritable_output(tmp_path):
     unwritable = run_rigcal("simulate", DEMO, "--records", "1", "--output", tmp_path / "no-dir" / "x.txt")
     assert unwritable.returncode == 74
     assert "x.txt: No such file or directory" in unwritable.stderr
+
+
+def test_tcp_follows_the_simulated_clock_by_default(tmp_path):
+    srv = FakeSessionServer().start()
+    try:
+        started = time.time()
+        out = run_rigcal("simulate", DEMO, "--duration", "2", "--tcp", srv.address())
+        elapsed = time.time() - started
+        assert out.returncode == 0, out.stderr
+        # Records stamped 0 s and 1 s after the start: the second second's go a second after the first.
+        assert 0.9 <= elapsed < 10
+        assert "0 failed" in out.stdout
+    finally:
+        srv.stop()

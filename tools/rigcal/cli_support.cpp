@@ -1,6 +1,7 @@
 #include "cli_support.hpp"
 
 #include <cerrno>
+#include <charconv>
 #include <cstdio>
 #include <cstring>
 #include <fstream>
@@ -30,6 +31,13 @@ std::optional<int> parse_command_line(const char* command, const std::string& us
     return exit_usage;
   }
   return std::nullopt;
+}
+
+std::optional<std::uint64_t> parse_count(const std::string& text) {
+  std::uint64_t v = 0;
+  const auto [end, ec] = std::from_chars(text.data(), text.data() + text.size(), v);
+  if (text.empty() || ec != std::errc{} || end != text.data() + text.size()) return std::nullopt;
+  return v;
 }
 
 std::optional<std::string> read_text_file(const std::string& path, std::string& error) {

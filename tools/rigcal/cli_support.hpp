@@ -1,6 +1,7 @@
 #pragma once
 // Helpers the commands share: option parsing with uniform error messages, reading input files.
 #include <boost/program_options.hpp>
+#include <cstdint>
 #include <optional>
 #include <string>
 
@@ -17,6 +18,9 @@ std::optional<int> parse_command_line(const char* command, const std::string& us
                                       const po::options_description& options,
                                       const po::positional_options_description& positional, po::variables_map& vm,
                                       const std::string& description = "");
+
+// A count given on the command line: digits only (Program_options would read "-1" as 2^64 - 1).
+std::optional<std::uint64_t> parse_count(const std::string& text);
 
 // Whole file as text, or a message naming the file and the OS error.
 std::optional<std::string> read_text_file(const std::string& path, std::string& error);

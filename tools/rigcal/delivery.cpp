@@ -47,7 +47,7 @@ po::options_description tcp_option_descriptions(DeliveryOptions& o) {
        "drop the silent connection and reconnect")
       ("give-up-after", po::value(&o.give_up_after_s)->default_value(60),
        "seconds without a working connection before giving up")
-      ("max-unacknowledged", po::value(&o.max_unacknowledged)->default_value(10000),
+      ("max-unacknowledged", po::value(&o.max_unacknowledged_text)->default_value("10000"),
        "records held for resending; sending pauses when this many are unacknowledged")
       ("show-rejects", po::bool_switch(&o.show_rejects), "print each rejected record with the server's reason");
   return d;
@@ -59,7 +59,7 @@ po::options_description serial_option_descriptions(DeliveryOptions& o) {
       ("baud", po::value(&o.line.baud)->default_value(9600), "line speed, bit/s")
       ("data-bits", po::value(&o.line.data_bits)->default_value(8), "character size, 5..8")
       ("parity", po::value(&o.parity_text)->default_value("none"), "none, odd or even")
-      ("stop-bits", po::value(&o.line.stop_bits)->default_value(1), "1 or 2")
+      ("stop-bits", po::value(&o.stop_bits_text)->default_value("1"), "1 or 2")
       ("flow-control", po::value(&o.flow_control_text)->default_value("none"),
        "none, software (XON/XOFF) or hardware (RTS/CTS)");
   return d;
@@ -75,11 +75,19 @@ std::optional<int> check_delivery_options(const char* command, DeliveryOptions& 
   if (o.rate && !(*o.rate > 0 && *o.rate < 1e9)) return usage("--rate must be a number of records per second above 0");
   if (!(o.ack_timeout_s > 0)) return usage("--ack-timeout must be a number of seconds above 0");
   if (!(o.give_up_after_s > 0)) return usage("--give-up-after must be a number of seconds above 0");
-  if (o.max_unacknowledged < 1) return usage("--max-unacknowledged must be at least 1");
+  const auto window = parse_count(o.max_unacknowledged_text);
+  if (!window || *window < 1 || *window > 100'000'000)
+    return usage("--max-unacknowledged must be a whole number from 1 to 100000000, got '" +
+                 o.max_unacknowledged_text + "'");
+  o.max_unacknowledged = static_cast<std::size_t>(*window);
   if (!o.stream.empty() && !protocol::is_valid_channel_name(o.stream))
     return usage("--stream '" + o.stream + "' must be 1-64 characters from A-Z a-z 0-9 _ . : / -");
   if (o.line.data_bits < 5 || o.line.data_bits > 8) return usage("--data-bits must be 5, 6, 7 or 8");
-  if (o.line.stop_bits != 1 && o.line.stop_bits != 2) return usage("--stop-bits must be 1 or 2");
+  using config::FlowControl, config::Parity, config::StopBits;
+  if (o.stop_bits_text == "1") o.line.stop_bits = StopBits::one;
+  else if (o.stop_bits_text == "2") o.line.stop_bits = StopBits::two;
+  else if (o.stop_bits_text == "1.5") return usage("--stop-bits 1.5 cannot be set through a POSIX serial driver");
+  else return usage("--stop-bits must be 1 or 2, got '" + o.stop_bits_text + "'");
   if (o.parity_text == "none") o.line.parity = Parity::none;
   else if (o.parity_text == "odd") o.line.parity = Parity::odd;
   else if (o.parity_text == "even") o.line.parity = Parity::even;

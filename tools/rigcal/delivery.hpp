@@ -8,6 +8,7 @@
 
 #include "cli_support.hpp"
 #include "pacer.hpp"
+#include "rigcal/config/config.hpp"
 #include "rigcal/protocol/sender_session.hpp"
 #include "rigcal/result.hpp"
 
@@ -22,16 +23,14 @@ struct TcpTarget {
 // HOST:PORT or [IPV6]:PORT, port 1..65535.
 Result<TcpTarget> parse_tcp_target(const std::string& text);
 
-enum class Parity { none, odd, even };
-enum class FlowControl { none, software, hardware };
-
-// Line settings of a serial device, with rigcald's defaults for a serial input.
+// Line settings of a serial device, in the words and with the defaults of rigcald's serial inputs
+// (config::SerialInput), so that both ends of a line can be set alike.
 struct SerialLine {
   unsigned baud = 9600;
   unsigned data_bits = 8;
-  Parity parity = Parity::none;
-  unsigned stop_bits = 1;
-  FlowControl flow_control = FlowControl::none;
+  config::Parity parity = config::Parity::none;
+  config::StopBits stop_bits = config::StopBits::one;
+  config::FlowControl flow_control = config::FlowControl::none;
 };
 
 struct DeliveryOptions {
@@ -44,10 +43,11 @@ struct DeliveryOptions {
   double ack_timeout_s = 10;
   double give_up_after_s = 60;
   std::size_t max_unacknowledged = 10000;
+  std::string max_unacknowledged_text = "10000";
   bool show_rejects = false;
   // serial
   SerialLine line;
-  std::string parity_text = "none", flow_control_text = "none";
+  std::string parity_text = "none", stop_bits_text = "1", flow_control_text = "none";
 };
 
 // The options above as Program_options descriptions (pacing separately: simulate words its own).

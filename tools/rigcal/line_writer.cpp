@@ -162,12 +162,16 @@ Result<int> open_serial_device(const std::string& device, const SerialLine& line
     ::close(fd);
     return Error{message};
   };
+  const auto speed = speed_of(line.baud);
+  if (!speed) {
+    ::close(fd);
+    return Error{device + ": " + std::to_string(line.baud) + " bit/s is not a standard speed"};
+  }
   termios t{};
   if (tcgetattr(fd, &t) != 0) return fail("not a serial device");
   cfmakeraw(&t);
-  const speed_t speed = *speed_of(line.baud);  // REQUIRES: supported_baud, checked with the options
-  cfsetispeed(&t, speed);
-  cfsetospeed(&t, speed);
+  cfsetispeed(&t, *speed);
+  cfsetospeed(&t, *speed);
   t.c_cflag &= ~static_cast<tcflag_t>(CSIZE | PARENB | PARODD | CSTOPB | CRTSCTS);
   t.c_cflag |= CLOCAL | CREAD;
   switch (line.data_bits) {
@@ -176,11 +180,11 @@ Result<int> open_serial_device(const std::string& device, const SerialLine& line
     case 7: t.c_cflag |= CS7; break;
     default: t.c_cflag |= CS8; break;
   }
-  if (line.parity != Parity::none) t.c_cflag |= PARENB;
-  if (line.parity == Parity::odd) t.c_cflag |= PARODD;
-  if (line.stop_bits == 2) t.c_cflag |= CSTOPB;
-  if (line.flow_control == FlowControl::hardware) t.c_cflag |= CRTSCTS;
-  if (line.flow_control == FlowControl::software) t.c_iflag |= IXON | IXOFF;
+  if (line.parity != config::Parity::none) t.c_cflag |= PARENB;
+  if (line.parity == config::Parity::odd) t.c_cflag |= PARODD;
+  if (line.stop_bits == config::StopBits::two) t.c_cflag |= CSTOPB;
+  if (line.flow_control == config::FlowControl::hardware) t.c_cflag |= CRTSCTS;
+  if (line.flow_control == config::FlowControl::software) t.c_iflag |= IXON | IXOFF;
   if (tcsetattr(fd, TCSANOW, &t) != 0) return fail("cannot set the line settings");
   // Blocking writes from here on: the line's speed paces them.
   const int flags = fcntl(fd, F_GETFL);

@@ -2,7 +2,7 @@
 
 #include <unistd.h>
 
-#include <algorithm>
+#include <cmath>
 #include <cstdio>
 #include <fmt/format.h>
 
@@ -25,8 +25,9 @@ void ProgressLine::update(const ProgressFigures& f, Clock::time_point now) {
   if (shown_ && dt < 0.25) return;
   if (dt > 0) {
     const double instant = static_cast<double>(f.done - last_done_) / dt;
-    // Exponential smoothing over about two seconds keeps the ETA from jumping with each ACK.
-    rate_per_s_ = shown_ ? rate_per_s_ + std::min(1.0, dt / 2) * (instant - rate_per_s_) : instant;
+    // Exponential smoothing with a time constant of a second keeps the ETA from jumping with each
+    // coalesced ACK while following a change of pace quickly.
+    rate_per_s_ = shown_ ? rate_per_s_ + (1 - std::exp(-dt)) * (instant - rate_per_s_) : instant;
   }
   last_draw_ = now;
   last_done_ = f.done;

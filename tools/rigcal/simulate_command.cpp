@@ -132,7 +132,7 @@ int run_simulate(const Args& args) {
       ("seed", po::value(&o.seed_text), "seed of the random numbers (default: the scenario's seed, else 1)")
       ("start", po::value(&o.start_text), "simulated start, RFC 3339 UTC or 'now' (default: the scenario's start, else now)")
       ("duration", po::value<double>(), "simulated seconds to run (default: the scenario's duration_s)")
-      ("records", po::value<std::uint64_t>(), "stop after N records (with --duration: whichever comes first)")
+      ("records", po::value<std::string>(), "stop after N records (with --duration: whichever comes first)")
       ("rate", po::value<double>(), "write N records per second of real time")
       ("as-fast-as-possible", po::bool_switch(&d.as_fast_as_possible), "no pacing (default for files)")
       ("arrival-time", po::bool_switch(&o.arrival_time), "write '-' as the time: rigcald stamps records on arrival");
@@ -145,7 +145,10 @@ int run_simulate(const Args& args) {
     return *done;
   if (vm.count("rate")) d.rate = vm["rate"].as<double>();
   if (vm.count("duration")) o.duration_s = vm["duration"].as<double>();
-  if (vm.count("records")) o.records = vm["records"].as<std::uint64_t>();
+  if (vm.count("records")) {
+    o.records = parse_count(vm["records"].as<std::string>());
+    if (!o.records) return *usage("--records must be a whole number, got '" + vm["records"].as<std::string>() + "'");
+  }
   if (!o.output.empty() && (!d.tcp.empty() || !d.serial.empty()))
     return *usage("give one of --output, --tcp and --serial");
   if (auto bad = check_delivery_options("simulate", d)) return *bad;

@@ -1,6 +1,7 @@
 #include "tcp_delivery.hpp"
 
 #include <algorithm>
+#include <fmt/format.h>
 #include <iostream>
 
 namespace rigcal::tool {
@@ -243,8 +244,8 @@ void TcpDelivery::drop_connection(const std::string& why, bool quietly) {
 void TcpDelivery::schedule_reconnect() {
   if (finished_) return;
   if (Clock::now() - unconnected_since_ >= seconds(settings_.give_up_after_s)) {
-    give_up(last_connect_error_ + " (gave up after " + std::to_string(static_cast<long long>(settings_.give_up_after_s)) +
-                " s without a connection)",
+    give_up(fmt::format("{} (gave up after {:g} s without a connection)", last_connect_error_,
+                        settings_.give_up_after_s),
             exit_unavailable);
     return;
   }
@@ -274,8 +275,7 @@ void TcpDelivery::tick() {
   if (finished_) return;
   const bool ending = feed_done_ || stopping_;
   if (connected_ && session_.ready() && session_.outstanding() > 0 && now - last_progress_ > seconds(settings_.ack_timeout_s)) {
-    const std::string why = "no acknowledgement for " + std::to_string(static_cast<long long>(settings_.ack_timeout_s)) +
-                            " s (--ack-timeout)";
+    const std::string why = fmt::format("no acknowledgement for {:g} s (--ack-timeout)", settings_.ack_timeout_s);
     if (ending) {
       give_up(why, exit_unavailable);
       return;
@@ -304,8 +304,8 @@ void TcpDelivery::on_signal() {
   stopping_ = true;
   result_.interrupted = true;
   stop_deadline_ = Clock::now() + seconds(settings_.ack_timeout_s);
-  warn("interrupted: waiting up to " + std::to_string(static_cast<long long>(settings_.ack_timeout_s)) +
-       " s for acknowledgements (interrupt again to stop at once)");
+  warn(fmt::format("interrupted: waiting up to {:g} s for acknowledgements (interrupt again to stop at once)",
+                   settings_.ack_timeout_s));
   signals_.async_wait([this](const boost::system::error_code& ec, int) {
     if (!ec) on_signal();
   });
