@@ -14,7 +14,8 @@ Fault injection, for the delivery guarantees:
   - stop_at: a record count at which the server acknowledges and then goes away entirely (listener
     closed) until start() is called again; its high-water marks survive, like a restarted daemon's;
   - restart(down_s): go away and come back on the same port after down_s seconds;
-  - acknowledge=False: take records but never ACK them.
+  - acknowledge=False: take records but never ACK them;
+  - answer_hello=False: accept connections and read, but never answer HELLO.
 """
 import re
 import socket
@@ -25,13 +26,15 @@ RECORD = re.compile(r"^@(\d+) (.*)$")
 
 
 class FakeSessionServer:
-    def __init__(self, secret=None, reject=None, drop_at=(), lose_unacked=False, stop_at=None, acknowledge=True):
+    def __init__(self, secret=None, reject=None, drop_at=(), lose_unacked=False, stop_at=None, acknowledge=True,
+                 answer_hello=True):
         self.secret = secret
         self.reject = reject or (lambda text: None)   # text -> None or (reason, detail)
         self.drop_at = set(drop_at)
         self.lose_unacked = lose_unacked
         self.stop_at = stop_at
         self.acknowledge = acknowledge
+        self.answer_hello = answer_hello
         self.lock = threading.Lock()
         self.high_water = {}     # stream -> highest seq taken (durable, survives restarts)
         self.records = {}        # stream -> [(seq, text)] in arrival order, each seq once
@@ -144,7 +147,8 @@ class FakeSessionServer:
                             self.hellos.append(stream)
                             last = self.high_water.get(stream, 0)
                         acked = last
-                        self._send(conn, f"OK HELLO {stream} {last}")
+                        if self.answer_hello:
+                            self._send(conn, f"OK HELLO {stream} {last}")
                         continue
                     m = RECORD.match(line)
                     if stream is None or not m:

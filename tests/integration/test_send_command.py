@@ -160,6 +160,17 @@ def test_records_never_acknowledged_fail_the_run(tmp_path, server):
     assert time.time() - started < 10
 
 
+def test_a_server_that_never_answers_hello_is_left_after_the_deadlines(tmp_path, server):
+    srv = server(answer_hello=False)
+    path = tmp_path / "rig.txt"
+    write_records(path, 5)
+    out = run_rigcal("send", path, "--tcp", srv.address(), "--ack-timeout", "0.5", "--give-up-after", "2")
+    assert out.returncode == 69
+    assert "no reply to HELLO within 0.5 s (--ack-timeout) (gave up after 2 s without a connection)" in out.stderr
+    assert counts(out.stdout) == (0, 0, 0, 5)
+    assert srv.connections >= 2  # it was retried
+
+
 def test_authentication(tmp_path, server):
     srv = server(secret="s3cret")
     path = tmp_path / "rig.txt"

@@ -90,6 +90,7 @@ void TcpDelivery::on_connected(std::uint64_t generation, const boost::system::er
     return;
   }
   connected_ = true;
+  connected_at_ = Clock::now();
   boost::system::error_code ignored;
   socket_.set_option(asio::ip::tcp::no_delay(true), ignored);
   write_buf_ = session_.open();
@@ -271,6 +272,9 @@ void TcpDelivery::tick() {
     connecting_ = false;
     last_connect_error_ = "cannot connect to " + settings_.target.text + ": no answer within the connection deadline";
     schedule_reconnect();
+  }
+  if (connected_ && !session_.ready() && now - connected_at_ > seconds(settings_.ack_timeout_s)) {
+    drop_connection(fmt::format("no reply to HELLO within {:g} s (--ack-timeout)", settings_.ack_timeout_s));
   }
   if (finished_) return;
   const bool ending = feed_done_ || stopping_;

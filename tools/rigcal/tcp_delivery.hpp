@@ -6,6 +6,7 @@
 // so that a handler of a closed connection does nothing. Deadlines:
 //   - a connection attempt gets min(5 s, what is left of --give-up-after);
 //   - without a working connection (HELLO answered) for --give-up-after seconds, the run gives up;
+//   - a HELLO not answered within --ack-timeout seconds drops the connection (and it is retried);
 //   - with records outstanding and no acknowledgement for --ack-timeout seconds, the connection is
 //     taken for dead and re-established, or, once the source is exhausted, the run gives up.
 // SIGINT or SIGTERM stops taking new records and waits up to --ack-timeout for the outstanding
@@ -88,7 +89,7 @@ class TcpDelivery {
   bool feed_done_ = false, stopping_ = false, finished_ = false;
   std::optional<FeedItem> next_item_;  // taken from the feed, waiting for its time
   std::optional<Clock::time_point> next_due_;
-  Clock::time_point connect_deadline_, unconnected_since_, last_progress_, stop_deadline_;
+  Clock::time_point connect_deadline_, connected_at_, unconnected_since_, last_progress_, stop_deadline_;
   std::chrono::milliseconds backoff_{100};
   std::string last_connect_error_;
 
