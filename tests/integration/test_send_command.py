@@ -319,3 +319,28 @@ def test_an_interrupt_stops_sending_waits_for_acknowledgements_and_the_rest_can_
     assert resumed.returncode == 0, resumed.stderr
     assert counts(resumed.stdout) == (400 - acked, 400 - acked, 0, 0)
     assert srv.stored(default_stream(path)) == list(enumerate(records, start=1))
+
+
+def test_progress_is_one_updating_line_on_a_terminal_only(tmp_path, server):
+    srv = server()
+    path = tmp_path / "rig.txt"
+    write_records(path, 150)
+    master, slave = pty.openpty()
+    try:
+        proc = subprocess.Popen([str(RIGCAL), "send", str(path), "--tcp", srv.address(), "--rate", "200"],
+                                stdout=subprocess.PIPE, stderr=slave, text=True)
+        stdout, _ = proc.communicate(timeout=30)
+        os.close(slave)
+        slave = None
+        shown = read_pty(master, 1 << 20, timeout=1).decode()
+    finally:
+        os.close(master)
+        if slave is not None:
+            os.close(slave)
+    assert proc.returncode == 0
+    assert counts(stdout) == (150, 150, 0, 0)
+    updates = shown.split("\r\x1b[K")
+    assert len(updates) >= 3  # redrawn in place, then cleared
+    assert any(re.search(r"sent \d+  acknowledged \d+  rejected 0 of 150  \d+ records/s", u) for u in updates)
+    assert "\n" not in shown  # never more than the one line
+    assert updates[-1] == ""  # cleared before the final line
