@@ -1,6 +1,7 @@
 #include "cli_support.hpp"
 
 #include <cerrno>
+#include <charconv>
 #include <cstdio>
 #include <cstring>
 #include <fstream>
@@ -12,13 +13,15 @@ namespace rigcal::tool {
 std::optional<int> parse_command_line(const char* command, const std::string& usage, const Args& args,
                                       const po::options_description& options,
                                       const po::positional_options_description& positional,
-                                      po::variables_map& vm) {
+                                      po::variables_map& vm, const std::string& description) {
   po::options_description all = options;
   all.add_options()("help,h", "show this help");
   try {
     po::store(po::command_line_parser(args).options(all).positional(positional).run(), vm);
     if (vm.count("help")) {
-      std::cout << "usage: rigcal " << command << " " << usage << "\n\n" << all << "\n";
+      std::cout << "usage: rigcal " << command << " " << usage << "\n\n";
+      if (!description.empty()) std::cout << description << "\n";
+      std::cout << all << "\n";
       return exit_ok;
     }
     po::notify(vm);
@@ -28,6 +31,13 @@ std::optional<int> parse_command_line(const char* command, const std::string& us
     return exit_usage;
   }
   return std::nullopt;
+}
+
+std::optional<std::uint64_t> parse_count(const std::string& text) {
+  std::uint64_t v = 0;
+  const auto [end, ec] = std::from_chars(text.data(), text.data() + text.size(), v);
+  if (text.empty() || ec != std::errc{} || end != text.data() + text.size()) return std::nullopt;
+  return v;
 }
 
 std::optional<std::string> read_text_file(const std::string& path, std::string& error) {

@@ -19,6 +19,8 @@ enum exit_code : int {
 using Args = std::vector<std::string>;
 
 int run_fit(const Args& args);
+int run_simulate(const Args& args);
+int run_send(const Args& args);
 int run_status(const Args& args);
 
 }  // namespace rigcal::tool

@@ -17,6 +17,8 @@ struct CommandEntry {
 
 constexpr CommandEntry commands[] = {
     {"fit", rigcal::tool::run_fit, "fit a straight-line calibration to a CSV file of reference/sensor pairs"},
+    {"simulate", rigcal::tool::run_simulate, "simulate a calibration rig from a scenario file, reproducibly"},
+    {"send", rigcal::tool::run_send, "replay a record file to rigcald over TCP (acknowledged) or a serial line"},
     {"status", rigcal::tool::run_status, "ask a running rigcald where each channel stands"},
 };
 
