@@ -185,11 +185,20 @@ Status Daemon::restore() {
     previous_first_segment_ = first;
     spdlog::info("no usable checkpoint: rebuilding every channel from the journal ({} segments)", segments.size());
   }
-  std::uint64_t entries = 0, last_segment = 0;
+  // Without a usable checkpoint, archived segments (journal.retain: archive) come first: with them
+  // the whole history is rebuilt. Their numbers are below the live ones.
+  std::vector<std::string> to_replay;
+  if (!cp)
+    for (std::uint64_t n : io::list_segments(dir + "/archive"))
+      if (segments.empty() || n < segments.front()) to_replay.push_back(dir + "/archive/" + io::segment_file_name(n));
+  if (!to_replay.empty()) spdlog::info("replaying {} archived segments first", to_replay.size());
+  std::uint64_t last_segment = 0;
   for (std::uint64_t n : segments) {
     last_segment = n;
-    if (n < first) continue;
-    const std::string path = dir + "/" + io::segment_file_name(n);
+    if (n >= first) to_replay.push_back(dir + "/" + io::segment_file_name(n));
+  }
+  std::uint64_t entries = 0;
+  for (const std::string& path : to_replay) {
     auto bytes = io::read_whole_file(path);
     if (!bytes) return Error{bytes.error().message};
     const auto report = state::read_journal_segment(bytes.value(), [this](const state::JournalEntry& e) { ingest_.replay(e); });

@@ -13,21 +13,31 @@
 namespace rigcal::config {
 
 namespace schema {
+namespace {
+// Whole numbers in full (10000000, not 1e+07); others in the shortest general form.
+std::string bound_text(double v) {
+  if (v == std::floor(v) && std::abs(v) < 1e15) return std::to_string(static_cast<long long>(v));
+  std::ostringstream s;
+  s << v;
+  return s.str();
+}
+}  // namespace
+
 std::string describe_range(const Range& r, bool integer) {
   std::ostringstream s;
   s << (integer ? "an integer" : "a number");
   const bool has_lo = std::isfinite(r.lo), has_hi = std::isfinite(r.hi);
   if (has_lo && has_hi) {
     if (!r.lo_open && !r.hi_open) {
-      s << " from " << r.lo << " to " << r.hi;
+      s << " from " << bound_text(r.lo) << " to " << bound_text(r.hi);
     } else {
-      s << (r.lo_open ? " greater than " : " at least ") << r.lo << (r.hi_open ? " and less than " : " and at most ")
-        << r.hi;
+      s << (r.lo_open ? " greater than " : " at least ") << bound_text(r.lo) << (r.hi_open ? " and less than " : " and at most ")
+        << bound_text(r.hi);
     }
   } else if (has_lo) {
-    s << (r.lo_open ? " greater than " : " at least ") << r.lo;
+    s << (r.lo_open ? " greater than " : " at least ") << bound_text(r.lo);
   } else if (has_hi) {
-    s << (r.hi_open ? " less than " : " at most ") << r.hi;
+    s << (r.hi_open ? " less than " : " at most ") << bound_text(r.hi);
   }
   return s.str();
 }
