@@ -253,3 +253,52 @@ TEST_CASE("a raw signal outside its linearisation's range is rejected, inside it
   CHECK(ch.fit().moments().count == 1);
   CHECK(ch.fit().moments().shift_y == Approx(100.0).margin(1e-3));
 }
+
+TEST_CASE("a block closes by itself once the channel has been quiet for a bucket length of ticks") {
+  auto c = channel_config();
+  c.averaging.block_readings = 0;
+  c.averaging.bucket_s = 60;
+  auto cfg = std::make_shared<const config::ChannelConfig>(c);
+  EngineTables tables;
+  ChannelEngine ch(cfg, config::TimeRules{}, tables);
+  CollectingSink sink;
+  // Readings stamped a day in the past (a replay): the clock never closes their bucket early.
+  const std::int64_t past = 1764576000 * s - 86400 * s;
+  const std::int64_t wall = 1764576000 * s;
+  for (int i = 0; i < 5; ++i) {
+    ch.on_reading(past + i * s, 80.0, sink);
+    ch.tick(wall + i * s, sink);
+  }
+  CHECK(sink.records.empty());
+  for (int i = 5; i < 64; ++i) ch.tick(wall + i * s, sink);  // quiet from the tick at 5 s
+  CHECK(sink.records.empty());
+  ch.tick(wall + 65 * s, sink);
+  REQUIRE(sink.records.size() == 1);
+  CHECK(sink.records[0].m == 5);
+  ch.tick(wall + 200 * s, sink);
+  CHECK(sink.records.size() == 1);
+}
+
+TEST_CASE("regression: a rig dwelling at one set point while the detector learns still gets a working design") {
+  // The first learn_pairs pairs all sit at 21 degC (a 15-minute dwell); the spread must come from
+  // the channel's range, not from those pairs, or the slope design shift is ~0 and no CUSUM exists.
+  auto c = channel_config();
+  c.sensor.noise_sd.reset();  // learned from the scatter about the certified line
+  auto cfg = std::make_shared<const config::ChannelConfig>(c);
+  EngineTables tables;
+  ChannelEngine ch(cfg, config::TimeRules{}, tables);
+  CollectingSink sink;
+  std::mt19937_64 rng(9);
+  std::normal_distribution<double> noise(0.0, 0.05);
+  const double set_points[] = {21, 60, 100, 140, 179, 140, 100, 60};
+  std::int64_t t = 0;
+  for (int i = 0; i < 8 * 900 * 2; ++i) {
+    const double x = set_points[(i / 900) % 8];
+    const double gain = i < 8 * 900 ? 1.0 : 1.01;
+    ch.on_pair(t += s, x, gain * x + noise(rng), sink);
+  }
+  CHECK(ch.drift().phase() == DriftMonitor::Phase::monitoring);
+  CHECK(ch.drift().design().sigma == Approx(0.05).epsilon(0.35));
+  CHECK(ch.drift().design().centre.x_centre == 100.0);
+  CHECK(sink.raised(AlertKind::drift) == 1);
+}

@@ -164,3 +164,19 @@ TEST_CASE("config/reference.md is the reference generated from the schema") {
                           "`channels[].detector.kind`", "`outputs.historian.listen.port`"})
     CHECK_THAT(generated, Catch::Contains(key));
 }
+
+TEST_CASE("the demo configuration's channels are the example's, apart from the forecast timing") {
+  const auto example = load_config(read_file(std::string(RIGCAL_SOURCE_DIR) + "/config/rigcald.yaml"), "rigcald.yaml");
+  const auto demo = load_config(read_file(std::string(RIGCAL_SOURCE_DIR) + "/config/demo.yaml"), "demo.yaml");
+  INFO(all_errors(demo));
+  REQUIRE(example.ok());
+  REQUIRE(demo.ok());
+  REQUIRE(demo.config.channels.size() == example.config.channels.size());
+  for (std::size_t i = 0; i < demo.config.channels.size(); ++i) {
+    ChannelConfig d = demo.config.channels[i];
+    d.forecast = example.config.channels[i].forecast;
+    INFO(d.id);
+    CHECK(channel_fingerprint(d) == channel_fingerprint(example.config.channels[i]));
+  }
+  CHECK(demo.config.inputs.serial.empty());
+}

@@ -22,5 +22,6 @@ int run_fit(const Args& args);
 int run_simulate(const Args& args);
 int run_send(const Args& args);
 int run_status(const Args& args);
+int run_watch(const Args& args);
 
 }  // namespace rigcal::tool

@@ -20,6 +20,7 @@ constexpr CommandEntry commands[] = {
     {"simulate", rigcal::tool::run_simulate, "simulate a calibration rig from a scenario file, reproducibly"},
     {"send", rigcal::tool::run_send, "replay a record file to rigcald over TCP (acknowledged) or a serial line"},
     {"status", rigcal::tool::run_status, "ask a running rigcald where each channel stands"},
+    {"watch", rigcal::tool::run_watch, "follow rigcald's historian feed and alerts, one readable line each"},
 };
 
 void print_usage(std::FILE* out) {

@@ -54,8 +54,7 @@ std::optional<Block> Averager::add(protocol::TimeNs t, double value, double raw)
   return closed;
 }
 
-std::optional<Block> Averager::close_if_due(protocol::TimeNs now) {
-  if (!open_ || block_readings_ > 0 || now < open_->end) return std::nullopt;
+std::optional<Block> Averager::close_open() {
   std::optional<Block> closed = open_;
   open_.reset();
   return closed;

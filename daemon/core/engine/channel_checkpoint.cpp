@@ -76,6 +76,8 @@ void ChannelEngine::save(state::BinaryWriter& w) const {
   w.i64(a.since);
   w.boolean(averager_.open().has_value());
   if (averager_.open()) put_block(w, *averager_.open());
+  w.i64(quiet_since_);
+  w.boolean(reading_since_tick_);
   w.i64(next_snapshot_);
   w.u64(pairs_since_tolerance_check_);
   w.boolean(due_alert_);
@@ -130,6 +132,8 @@ bool ChannelEngine::load(state::BinaryReader& r) {
   } else {
     averager_.clear();
   }
+  quiet_since_ = r.i64();
+  reading_since_tick_ = r.boolean();
   next_snapshot_ = r.i64();
   pairs_since_tolerance_check_ = r.u64();
   due_alert_ = r.boolean();

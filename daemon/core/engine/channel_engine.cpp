@@ -213,11 +213,19 @@ void ChannelEngine::on_reading(protocol::TimeNs t, double y_raw, EventSink& sink
 }
 
 void ChannelEngine::add_reading(protocol::TimeNs t, double value, double raw, EventSink& sink) {
+  reading_since_tick_ = true;
   if (auto closed = averager_.add(t, value, raw)) emit_historian(*closed, sink);
 }
 
 void ChannelEngine::tick(protocol::TimeNs now, EventSink& sink) {
-  if (auto closed = averager_.close_if_due(now)) emit_historian(*closed, sink);
+  if (reading_since_tick_ || !averager_.open()) {
+    reading_since_tick_ = false;
+    quiet_since_ = now;
+    return;
+  }
+  const auto quiet_ns = static_cast<protocol::TimeNs>(cfg_->averaging.bucket_s * ns_per_s);
+  if (now - quiet_since_ >= quiet_ns)
+    if (auto closed = averager_.close_open()) emit_historian(*closed, sink);
 }
 
 CalibrationSnapshot ChannelEngine::calibration() const {
@@ -351,6 +359,8 @@ void ChannelEngine::restart_fresh() {
   has_time_ = false;
   last_time_ = 0;
   historian_seq_ = 0;
+  quiet_since_ = 0;
+  reading_since_tick_ = false;
   last_record_.reset();
 }
 

@@ -55,6 +55,7 @@ void DriftMonitor::reset() {
   phase_ = Phase::waiting;
   unavailable_reason_.clear();
   learn_x_.clear();
+  learn_e_.clear();
   const std::string kind = design_.kind;
   design_ = DriftDesign{};
   design_.kind = kind;
@@ -76,6 +77,7 @@ DriftFinding DriftMonitor::update(double x, double y, const Result<stats::LineFi
         phase_changed_ = true;
       }
       learn_x_.push_back(x);
+      learn_e_.push_back(y - (line_.intercept + line_.slope * x));
       if (learn_x_.size() >= learn_pairs(cfg_)) finish_learning(fit);
       return {};
     case Phase::unavailable:
@@ -116,29 +118,57 @@ DriftFinding DriftMonitor::interval_rule(const Result<stats::LineFit>& fit) {
   return f;
 }
 
-void DriftMonitor::finish_learning(const Result<stats::LineFit>& fit) {
+// The centre and spread of the reference values, and the sensor noise, that the sequential
+// detectors are standardised and designed with.
+//  - With a configured range [lo, hi] the centre is its midpoint and the spread that of set points
+//    spread evenly over it (RMS (hi - lo) / sqrt 12, mean absolute deviation (hi - lo) / 4): a rig
+//    dwells at one set point for many pairs, so the first pairs say nothing about the spread. The
+//    slope innovation is exactly N(0, 1) whatever centre is used; the centre only decides how pairs
+//    are matched across it.
+//  - Without a range, they are learned from the learning pairs (median, RMS, mean |x - median|).
+//  - sigma: configured, or the standard deviation of y - (b0* + b1* x) over the learning pairs
+//    (mean removed, so that an initial offset is not taken for noise; no spread in x needed).
+void DriftMonitor::finish_learning(const Result<stats::LineFit>&) {
   auto fail = [this](std::string why) {
     phase_ = Phase::unavailable;
     phase_changed_ = true;
     unavailable_reason_ = std::move(why);
     learn_x_.clear();
     learn_x_.shrink_to_fit();
+    learn_e_.clear();
+    learn_e_.shrink_to_fit();
   };
-  auto centre = detect::reference_centre(learn_x_);
-  if (!centre) return fail("cannot learn the reference centre: " + centre.error().message);
-  design_.centre = centre.value();
+  if (cfg_.range_low && cfg_.range_high) {
+    const double lo = *cfg_.range_low, hi = *cfg_.range_high;
+    design_.centre.x_centre = 0.5 * (lo + hi);
+    design_.centre.x_spread = (hi - lo) / std::sqrt(12.0);
+    design_.centre.mean_abs_deviation = 0.25 * (hi - lo);
+  } else {
+    auto centre = detect::reference_centre(learn_x_);
+    if (!centre)
+      return fail("cannot learn the reference centre: " + centre.error().message +
+                  " (configure the channel's range, or raise detector.learn_pairs to span several set points)");
+    design_.centre = centre.value();
+  }
   if (cfg_.sensor.noise_sd) {
     design_.sigma = *cfg_.sensor.noise_sd;
   } else {
-    if (!fit.ok()) return fail("cannot learn the sensor noise: " + fit.error().message);
+    double mean = 0, m2 = 0;
+    for (std::size_t i = 0; i < learn_e_.size(); ++i) {
+      const double d = learn_e_[i] - mean;
+      mean += d / static_cast<double>(i + 1);
+      m2 += d * (learn_e_[i] - mean);
+    }
     const double floor = cfg_.sensor.resolution / std::sqrt(12.0);
-    design_.sigma = std::max(fit->s, floor);
+    design_.sigma = std::max(learn_e_.size() > 1 ? std::sqrt(m2 / static_cast<double>(learn_e_.size() - 1)) : 0.0, floor);
     design_.sigma_learned = true;
     if (!(design_.sigma > 0))
-      return fail("cannot learn the sensor noise: the residual SD is zero; configure sensor.noise_sd");
+      return fail("cannot learn the sensor noise: the readings do not scatter; configure sensor.noise_sd");
   }
   learn_x_.clear();
   learn_x_.shrink_to_fit();
+  learn_e_.clear();
+  learn_e_.shrink_to_fit();
   start_detectors();
 }
 
@@ -260,7 +290,10 @@ void DriftMonitor::save(state::BinaryWriter& w) const {
   w.u8(static_cast<std::uint8_t>(phase_));
   w.text(unavailable_reason_);
   w.u64(learn_x_.size());
-  for (double x : learn_x_) w.f64(x);
+  for (std::size_t i = 0; i < learn_x_.size(); ++i) {
+    w.f64(learn_x_[i]);
+    w.f64(learn_e_[i]);
+  }
   w.f64(design_.sigma);
   w.boolean(design_.sigma_learned);
   w.f64(design_.centre.x_centre);
@@ -299,8 +332,11 @@ bool DriftMonitor::load(state::BinaryReader& r) {
   if (phase > static_cast<std::uint8_t>(Phase::unavailable)) return false;
   phase_ = static_cast<Phase>(phase);
   unavailable_reason_ = r.text(4096);
-  const std::uint64_t n = r.count(8);
-  for (std::uint64_t i = 0; i < n; ++i) learn_x_.push_back(r.f64());
+  const std::uint64_t n = r.count(16);
+  for (std::uint64_t i = 0; i < n; ++i) {
+    learn_x_.push_back(r.f64());
+    learn_e_.push_back(r.f64());
+  }
   design_.sigma = r.f64();
   design_.sigma_learned = r.boolean();
   design_.centre.x_centre = r.f64();

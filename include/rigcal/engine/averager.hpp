@@ -1,8 +1,11 @@
 #pragma once
 // Groups a channel's sensor readings into averaging blocks: either every `block_readings` readings,
-// or fixed UTC-aligned time buckets of `bucket_ns` (a bucket [k T, (k+1) T) closes when a reading of
-// a later bucket arrives, or when the clock passes its end; see ChannelEngine::tick). A reading that
-// arrives late (an earlier bucket than the open one) joins the open block: blocks never reopen.
+// or fixed UTC-aligned time buckets of `bucket_ns` (a bucket [k T, (k+1) T) of record time closes
+// when a reading of a later bucket arrives). A block also closes, with what it has, when no reading
+// has arrived for one bucket length of the daemon's clock (ChannelEngine::tick), so a sensor that
+// stops does not leave its last block open forever; record time and the clock are never compared,
+// so replaying old data works the same as live data. A reading that arrives late (an earlier bucket
+// than the open one) joins the open block: blocks never reopen.
 // The mean uses Welford's update; the block's own standard deviation is kept for diagnostics.
 #include <cstdint>
 #include <optional>
@@ -30,8 +33,8 @@ class Averager {
   // Adds a reading; returns the block it completed, if any (the completing reading of a count block
   // is in it; a reading of a later bucket starts the next block after closing the open one).
   std::optional<Block> add(protocol::TimeNs t, double value, double raw);
-  // Closes the open time bucket if `now` is past its end.
-  std::optional<Block> close_if_due(protocol::TimeNs now);
+  // Closes the open block, whatever it holds (the channel went quiet).
+  std::optional<Block> close_open();
 
   const std::optional<Block>& open() const { return open_; }
   void restore(std::optional<Block> b) { open_ = b; }

@@ -124,6 +124,10 @@ class ChannelEngine {
   bool has_time_ = false;
   std::uint64_t version_ = 1;
   std::uint64_t historian_seq_ = 0;
+  // Quiet-channel rule for averaging: the first tick without a reading since the last one; the open
+  // block closes once the ticks have run one bucket length past it.
+  protocol::TimeNs quiet_since_ = 0;
+  bool reading_since_tick_ = false;
   std::optional<HistorianRecord> last_record_;
   // Tolerance and calibration-due forecast (only with a tolerance and a range).
   bool has_tolerance_ = false;

@@ -9,8 +9,9 @@
 //  ewma      for the channel's target ARL0 and smallest change worth catching (detect/arl.hpp).
 //  anytime   the normal-mixture test of (offset, slope) jointly: P(any false alert, ever) <= alpha.
 //
-// The sequential kinds first learn, over learn_pairs pairs, the reference centre and spread (and
-// the noise SD when the configuration does not give it); only then are they designed and started.
+// The sequential kinds first learn, over learn_pairs pairs, the noise SD (when the configuration
+// does not give it) and, for a channel without a range, the reference centre and spread; only then
+// are they designed and started (see finish_learning in drift_monitor.cpp).
 // Designs come from EngineTables and are shared between channels.
 #include <optional>
 #include <string>
@@ -91,7 +92,8 @@ class DriftMonitor {
   Phase phase_ = Phase::waiting;
   bool phase_changed_ = false;
   std::string unavailable_reason_;
-  std::vector<double> learn_x_;
+  std::vector<double> learn_x_;  // reference values of the learning pairs
+  std::vector<double> learn_e_;  // their deviations y - (b0* + b1* x) from the certified line
   DriftDesign design_;
   std::optional<detect::InnovationStream> innovations_;
   std::optional<detect::Cusum> cusum_offset_, cusum_slope_;
