@@ -19,5 +19,6 @@ enum exit_code : int {
 using Args = std::vector<std::string>;
 
 int run_fit(const Args& args);
+int run_report(const Args& args);
 
 }  // namespace rigcal::tool

@@ -17,6 +17,7 @@ struct CommandEntry {
 
 constexpr CommandEntry commands[] = {
     {"fit", rigcal::tool::run_fit, "fit a straight-line calibration to a CSV file of reference/sensor pairs"},
+    {"report", rigcal::tool::run_report, "write the calibration report (HTML and text) from a CSV file or the journal"},
 };
 
 void print_usage(std::FILE* out) {
