@@ -162,8 +162,10 @@ std::string york_block(const Report& r) {
          num_cell("york_u_b_scaled", y.u_b_scaled, 6) + "</tr>\n";
   out += "<tr><td>cov(a, b)</td>" + num_cell("york_cov_ab", y.cov_ab, 6) + "<td></td>" +
          num_cell("york_cov_ab_scaled", y.cov_ab_scaled, 6) + "</tr>\n";
-  out += "<tr><td>chi-square S, dof, p</td>" + num_cell("york_chi_square", y.chi_square, 6) +
-         num_cell("york_dof", y.dof, 6) + num_cell("york_p_value", y.p_value, 4) + "</tr>\n</table>\n";
+  out += "<tr><td>chi-square S</td>" + num_cell("york_chi_square", y.chi_square, 6) + "<td></td><td></td></tr>\n";
+  out += "<tr><td>degrees of freedom</td>" + num_cell("york_dof", y.dof, 6) + "<td></td><td></td></tr>\n";
+  out += "<tr><td>P(chi-square \u2265 S)</td>" + num_cell("york_p_value", y.p_value, 4) +
+         "<td></td><td></td></tr>\n</table>\n";
   return out + para(york_sentence(r));
 }
 

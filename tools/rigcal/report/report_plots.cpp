@@ -122,8 +122,11 @@ Figure calibration_figure(const Report& r) {
 
 Figure residual_reference_figure(const Report& r) {
   const std::string units = r.labels.units;
+  // A little room above and below, so that the outermost residuals and band edges are not on the frame.
+  AxisSpec ya = axis(with_units("residual y \u2212 fit", units));
+  ya.pad_fraction = 0.04;
   SvgPlot p("plot-residual-reference", "Residuals against the reference value",
-            axis(with_units(r.labels.reference_name, units)), axis(with_units("residual y \u2212 fit", units)));
+            axis(with_units(r.labels.reference_name, units)), ya);
   p.set_size(900, 360);
   add_bands(p, r, true);
   const std::vector<double> x = band_x(r);
@@ -150,8 +153,9 @@ Figure residual_time_figure(const Report& r) {
     for (std::size_t i = 0; i < r.data.x.size(); ++i) x.push_back(static_cast<double>(i + 1));
   AxisSpec xa = axis(timed ? "time (UTC)" : "pair order (the data carries no time stamps)");
   xa.time_utc = timed;
-  SvgPlot p("plot-residual-time", timed ? "Residuals against time" : "Residuals against pair order", xa,
-            axis(with_units("residual y \u2212 fit", r.labels.units)));
+  AxisSpec ya = axis(with_units("residual y \u2212 fit", r.labels.units));
+  ya.pad_fraction = 0.04;
+  SvgPlot p("plot-residual-time", timed ? "Residuals against time" : "Residuals against pair order", xa, ya);
   p.set_size(900, 320);
   const double ts = r.intervals.t * r.fit.s;
   p.add_hline("residual-zero", "fitted line (zero residual)", 0.0, line_style(colour::fit));

@@ -304,7 +304,10 @@ std::string SvgPlot::render() const {
     const double x = sx.to_pixel(t.value);
     out += "<line" + attr("x1", px(x)) + attr("x2", px(x)) + attr("y1", px(l.bottom)) + attr("y2", px(l.bottom + 5)) +
            attr("stroke", axis_colour) + "/>";
-    out += "<text class=\"tick-label x-tick\"" + attr("x", px(x)) + attr("y", px(l.bottom + 5 + font_px + 2)) +
+    // A label at either end of the axis is kept inside the picture rather than centred on its tick.
+    const double half = 0.5 * text_width(t.label);
+    const double lx = std::clamp(x, half + 2, width_ - half - 2);
+    out += "<text class=\"tick-label x-tick\"" + attr("x", px(lx)) + attr("y", px(l.bottom + 5 + font_px + 2)) +
            " text-anchor=\"middle\"" + attr("data-value", exact_number(t.value)) + ">" + escape_html(t.label) +
            "</text>";
   }
