@@ -307,6 +307,9 @@ def test_bad_input_names_file_and_line(tmp_path, content, args, message):
     (["--csv", "a.csv", "--certified-slope", "1"], "needs both --certified-slope and --certified-intercept"),
     (["--csv", "a.csv", "--errors-in-variables", "--u-reference", "0.1"], "uncertainty of both variables"),
     (["--csv", "a.csv", "--u-sensor", "0.1"], "used only with --errors-in-variables"),
+    (["--csv", "a.csv", "--decision-rule", "simple"], "--decision-rule needs a tolerance"),
+    (["--csv", "a.csv", "--through-origin", "--errors-in-variables", "--u-reference", "1", "--u-sensor", "1"],
+     "fits the line model only"),
 ])
 def test_bad_command_lines_exit_64(tmp_path, args, message):
     out = run_rigcal("report", *args, "--output", tmp_path / "r.html")

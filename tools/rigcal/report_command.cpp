@@ -141,7 +141,12 @@ std::string check_combination(const ReportCommandOptions& o, const po::variables
     if (rule != "simple" && rule != "guarded") return "--decision-rule must be simple or guarded, got '" + rule + "'";
     if (rule == "simple" && given(vm, "guard-band")) return "--guard-band applies to the guarded rule only";
   }
+  const bool tolerance = given(vm, "tolerance-absolute") || given(vm, "tolerance-percent-of-reading") ||
+                         given(vm, "tolerance-percent-of-span");
+  for (const char* name : {"decision-rule", "guard-band"})
+    if (given(vm, name) && !tolerance) return fmt::format("--{} needs a tolerance (--tolerance-absolute, ...)", name);
   const bool eiv = given(vm, "errors-in-variables");
+  if (eiv && given(vm, "through-origin")) return "--errors-in-variables fits the line model only, not --through-origin";
   const bool ux = given(vm, "u-reference") || !o.columns.u_reference.empty();
   const bool uy = given(vm, "u-sensor") || !o.columns.u_sensor.empty();
   if (!eiv && (ux || uy)) return "--u-reference, --u-sensor and their columns are used only with --errors-in-variables";
