@@ -1,5 +1,6 @@
 #include "cli_support.hpp"
 
+#include <algorithm>
 #include <cerrno>
 #include <charconv>
 #include <cstdio>
@@ -13,11 +14,14 @@ namespace rigcal::tool {
 std::optional<int> parse_command_line(const char* command, const std::string& usage, const Args& args,
                                       const po::options_description& options,
                                       const po::positional_options_description& positional,
-                                      po::variables_map& vm, const std::string& description) {
+                                      po::variables_map& vm, const std::string& description, int style) {
   po::options_description all = options;
   all.add_options()("help,h", "show this help");
+  Args words = args;
+  if (!(style & po::command_line_style::allow_short))
+    std::replace(words.begin(), words.end(), std::string("-h"), std::string("--help"));
   try {
-    po::store(po::command_line_parser(args).options(all).positional(positional).run(), vm);
+    po::store(po::command_line_parser(words).options(all).positional(positional).style(style).run(), vm);
     if (vm.count("help")) {
       std::cout << "usage: rigcal " << command << " " << usage << "\n\n";
       if (!description.empty()) std::cout << description << "\n";

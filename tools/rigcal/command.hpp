@@ -23,5 +23,6 @@ int run_simulate(const Args& args);
 int run_send(const Args& args);
 int run_status(const Args& args);
 int run_watch(const Args& args);
+int run_report(const Args& args);
 
 }  // namespace rigcal::tool

@@ -21,6 +21,7 @@ constexpr CommandEntry commands[] = {
     {"send", rigcal::tool::run_send, "replay a record file to rigcald over TCP (acknowledged) or a serial line"},
     {"status", rigcal::tool::run_status, "ask a running rigcald where each channel stands"},
     {"watch", rigcal::tool::run_watch, "follow rigcald's historian feed and alerts, one readable line each"},
+    {"report", rigcal::tool::run_report, "write the calibration report (HTML and text) from a CSV file or the journal"},
 };
 
 void print_usage(std::FILE* out) {
