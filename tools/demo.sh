@@ -15,7 +15,7 @@ build=${RIGCAL_BUILD_DIR:-build}
 
 tools/setup.sh --minimal
 echo "== building rigcald and rigcal (Release) in $build/"
-cmake -S . -B "$build" -DCMAKE_BUILD_TYPE=Release -DRIGCAL_TESTS=OFF >/dev/null
+cmake -S . -B "$build" -DCMAKE_BUILD_TYPE=Release >/dev/null
 cmake --build "$build" -j"$(nproc)" --target rigcald rigcal >/dev/null
 
 demo=$(mktemp -d /tmp/rigcal-demo.XXXXXX)
@@ -55,8 +55,9 @@ echo
 echo "== rigcal status"
 "$build/tools/rigcal" status --state-directory "$state"
 
-echo "== calibration report of TT-101 from the daemon's journal"
+echo "== as-found calibration report of TT-101: the last two simulated hours, from the daemon's journal"
 "$build/tools/rigcal" report --journal "$state" --config config/demo.yaml --channel TT-101 \
+  --since "$(date -u -d '-2 hours' +%Y-%m-%dT%H:%M:%SZ)" \
   --output "$demo/TT-101-report.html" --text "$demo/TT-101-report.txt"
 cat "$demo/TT-101-report.txt"
 

@@ -33,6 +33,8 @@ ordered_json fit_json(const engine::ChannelEngine& ch) {
           {"s", f.s},
           {"r2", f.r2 ? ordered_json(*f.r2) : ordered_json()},
           {"confidence", ch.config().fit.confidence},
+          {"reference_spread", f.reference_spread()},
+          {"spread_sufficient", f.reference_spread() >= ch.config().min_reference_spread()},
           {"verdict",
            {{"slope_consistent", v.slope_consistent},
             {"intercept_consistent", v.intercept_consistent},

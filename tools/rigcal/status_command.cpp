@@ -75,8 +75,12 @@ void print_channel(const json& c) {
                              num(fit["b0"]), interval(fit["ci_b0"]), num(fit["b1"]), interval(fit["ci_b1"]), num(fit["s"]),
                              num(json(fit["confidence"].get<double>() * 100), "{:g}"));
     auto word = [](bool ok) { return ok ? "consistent" : "NOT consistent"; };
-    std::cout << fmt::format("  vs cert   slope {}, intercept {}, joint {}\n", word(v["slope_consistent"].get<bool>()),
-                             word(v["intercept_consistent"].get<bool>()), word(v["joint_consistent"].get<bool>()));
+    if (fit.value("spread_sufficient", true))
+      std::cout << fmt::format("  vs cert   slope {}, intercept {}, joint {}\n", word(v["slope_consistent"].get<bool>()),
+                               word(v["intercept_consistent"].get<bool>()), word(v["joint_consistent"].get<bool>()));
+    else
+      std::cout << fmt::format("  vs cert   no verdict: the reference values in the fit spread too little (RMS {})\n",
+                               num(fit["reference_spread"], "{:.3g}"));
   } else {
     std::cout << "  fit       " << fit["problem"].get<std::string>() << "\n";
   }
@@ -112,7 +116,11 @@ void print_status(const json& s) {
   if (d["journal"]["blocked"].get<bool>())
     std::cout << "  ** JOURNAL BLOCKED: " << d["journal"]["error"].get<std::string>() << " (inputs paused) **\n";
   for (const auto& in : s["inputs"])
-    std::cout << fmt::format("  input {}: {} lines, {} pairs, {} readings, {} duplicates, {} rejected\n",
+    if (in["name"] == "engine")
+      std::cout << fmt::format("  screened by the channels (outliers, signal range, clock): {} rejected\n",
+                               in["rejects_total"].get<std::uint64_t>());
+    else
+      std::cout << fmt::format("  input {}: {} lines, {} pairs, {} readings, {} duplicates, {} rejected\n",
                              in["name"].get<std::string>(), in["lines"].get<std::uint64_t>(), in["pairs"].get<std::uint64_t>(),
                              in["readings"].get<std::uint64_t>(), in["duplicates"].get<std::uint64_t>(),
                              in["rejects_total"].get<std::uint64_t>());

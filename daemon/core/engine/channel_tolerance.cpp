@@ -52,6 +52,9 @@ Result<metrology::ToleranceVerdict> ChannelEngine::tolerance_verdict() const {
   if (!has_tolerance_) return Error{"no tolerance configured for this channel"};
   const auto fit = fit_summary();
   if (!fit) return fit.error();
+  if (const double need = cfg_->min_reference_spread(); fit->reference_spread() < need)
+    return Error{"the fit's reference values spread too little (RMS " + num("%.3g", fit->reference_spread()) +
+                 " against fit.min_reference_spread " + num("%.3g", need) + ") for a verdict over the range"};
   metrology::VerdictOptions o;
   o.rule = cfg_->decision_rule == config::DecisionRule::simple ? metrology::DecisionRule::simple_acceptance
                                                                 : metrology::DecisionRule::guarded_acceptance;
@@ -90,7 +93,7 @@ void ChannelEngine::after_pair_checks(protocol::TimeNs t, EventSink& sink) {
   if (t < next_snapshot_) return;
   next_snapshot_ = t + static_cast<protocol::TimeNs>(cfg_->forecast.snapshot_interval_s * ns_per_s);
   const auto fit = fit_summary();
-  if (fit) take_snapshot(t, fit.value(), sink);
+  if (fit && fit->reference_spread() >= cfg_->min_reference_spread()) take_snapshot(t, fit.value(), sink);
 }
 
 void ChannelEngine::check_tolerance(protocol::TimeNs t, EventSink& sink) {

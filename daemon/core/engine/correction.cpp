@@ -39,6 +39,9 @@ void correct_block(const config::ChannelConfig& cfg, const Result<stats::LineFit
   if (!min_pairs_reached) {
     record.quality = Quality::uncertain;
     record.quality_reason = "fewer pairs in the fit than min_pairs";
+  } else if (fit->reference_spread() < cfg.min_reference_spread()) {
+    record.quality = Quality::uncertain;
+    record.quality_reason = "the fit's reference values spread too little over the range";
   } else if (drift_alert) {
     record.quality = Quality::uncertain;
     record.quality_reason = "drift alert raised: the calibration may no longer hold";

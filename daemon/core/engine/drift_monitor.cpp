@@ -59,6 +59,7 @@ void DriftMonitor::reset() {
   const std::string kind = design_.kind;
   design_ = DriftDesign{};
   design_.kind = kind;
+  latched_ = false;
   innovations_.reset();
   cusum_offset_.reset();
   cusum_slope_.reset();
@@ -90,6 +91,7 @@ DriftFinding DriftMonitor::update(double x, double y, const Result<stats::LineFi
 
 DriftFinding DriftMonitor::interval_rule(const Result<stats::LineFit>& fit) {
   if (!fit.ok() || fit->count < static_cast<std::uint64_t>(cfg_.min_pairs)) return {};
+  if (fit->reference_spread() < cfg_.min_reference_spread()) return {};  // no verdict on the slope yet
   if (phase_ != Phase::monitoring) {
     phase_ = Phase::monitoring;
     phase_changed_ = true;
@@ -242,8 +244,15 @@ DriftFinding DriftMonitor::sequential(double x, double y) {
   const detect::Innovations in = innovations_->next(x, y);
   DriftFinding f;
   f.evaluated = true;
-  auto pick = [&f](bool off_alarm, bool sl_alarm, double off_stat, double off_thr, double sl_stat, double sl_thr) {
-    f.present = off_alarm || sl_alarm;
+  // Deadband (ISA-18.2 practice): a finding, once present, lasts until the statistic is back below
+  // half its threshold, so a statistic hovering at the threshold (a slow ramp) does not toggle.
+  auto pick = [&f, this](bool off_alarm, bool sl_alarm, double off_stat, double off_thr, double sl_stat,
+                         double sl_thr) {
+    if (latched_ && !off_alarm && !sl_alarm)
+      latched_ = off_stat > deadband_fraction * off_thr || sl_stat > deadband_fraction * sl_thr;
+    else
+      latched_ = off_alarm || sl_alarm;
+    f.present = latched_;
     const bool slope_leads = sl_thr > 0 && off_thr > 0 && sl_stat / sl_thr > off_stat / off_thr;
     f.test = off_alarm && sl_alarm ? "offset+slope" : (sl_alarm || (!off_alarm && slope_leads) ? "slope" : "offset");
     const bool use_slope = sl_alarm && !off_alarm ? true : (!off_alarm && !sl_alarm && slope_leads);
@@ -300,6 +309,7 @@ void DriftMonitor::save(state::BinaryWriter& w) const {
   w.f64(design_.centre.x_spread);
   w.f64(design_.centre.mean_abs_deviation);
   const bool running = phase_ == Phase::monitoring && innovations_.has_value();
+  w.boolean(latched_);
   w.boolean(running);
   if (!running) return;
   const auto s = innovations_->state();
@@ -342,6 +352,7 @@ bool DriftMonitor::load(state::BinaryReader& r) {
   design_.centre.x_centre = r.f64();
   design_.centre.x_spread = r.f64();
   design_.centre.mean_abs_deviation = r.f64();
+  const bool latched = r.boolean();
   const bool running = r.boolean();
   if (!r.ok()) return false;
   if (!running) return true;
@@ -369,6 +380,7 @@ bool DriftMonitor::load(state::BinaryReader& r) {
   if (cusum_offset_ && (!cusum_offset_->restore(co) || !cusum_slope_->restore(cs))) return false;
   if (ewma_offset_ && (!ewma_offset_->restore(eo) || !ewma_slope_->restore(es))) return false;
   if (mixture_ && !mixture_->restore(m)) return false;
+  latched_ = latched;
   phase_changed_ = false;
   return true;
 }

@@ -32,6 +32,12 @@ double LineFit::leverage(double x) const {
   return 1.0 / sum_w + d * d / sxx;
 }
 
+double LineFit::reference_spread() const {
+  if (model == Model::line) return sum_w > 0 ? std::sqrt(sxx / sum_w) : 0.0;
+  const double centred = sxx - sum_w * mean_x * mean_x;  // sxx is uncentred through the origin
+  return sum_w > 0 && centred > 0 ? std::sqrt(centred / sum_w) : 0.0;
+}
+
 Result<LineFit> summarize(const LineMoments& m, Model model) {
   LineFit f;
   f.model = model;

@@ -165,6 +165,7 @@ struct FitConfig {
   bool errors_in_variables = false;
   double confidence = 0.95;
   bool widen_by_certificate = true;
+  std::optional<double> min_reference_spread;  // RMS of the fit's reference values; default: span/20
   stats::MemoryPolicy policy() const {
     switch (memory) {
       case stats::MemoryPolicy::Kind::window: return stats::MemoryPolicy::window(static_cast<std::size_t>(window_pairs));
@@ -237,6 +238,15 @@ struct ChannelConfig {
   AlertPolicy alert;
   AveragingConfig averaging;
   ForecastConfig forecast;
+
+  // The least RMS spread of the reference values in the fit before verdicts are given (a fit of pairs
+  // at one set point cannot say anything about the slope): configured, else a twentieth of the
+  // range's span, else 0.
+  double min_reference_spread() const {
+    if (fit.min_reference_spread) return *fit.min_reference_spread;
+    if (range_low && range_high) return (*range_high - *range_low) / 20.0;
+    return 0.0;
+  }
 
   int raise_after() const {
     if (alert.raise_after) return *alert.raise_after;

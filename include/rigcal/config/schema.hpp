@@ -282,6 +282,9 @@ void describe(V& v, FitConfig& c) {
            Need::optional);
   v.flag("widen_by_certificate", c.widen_by_certificate,
          "widen the certificate tests by the certificate's own standard uncertainties");
+  v.optional_number("min_reference_spread", c.min_reference_spread, non_negative, "channel units",
+                    "least RMS spread of the fit's reference values before any verdict (default: a twentieth of "
+                    "the range's span, 0 without a range)");
 }
 
 template <class V>

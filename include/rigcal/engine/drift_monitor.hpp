@@ -89,6 +89,8 @@ class DriftMonitor {
   EngineTables& tables_;
   const stats::TwoSidedT& t_;
   stats::CertifiedLine line_;
+  static constexpr double deadband_fraction = 0.5;
+  bool latched_ = false;  // a sequential finding stays present until below the deadband
   Phase phase_ = Phase::waiting;
   bool phase_changed_ = false;
   std::string unavailable_reason_;

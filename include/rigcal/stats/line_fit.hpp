@@ -44,6 +44,8 @@ struct LineFit {
   double predict(double x) const;
   // Variance factor of the fitted line at x: Var(predict(x)) = s^2 * leverage(x).
   double leverage(double x) const;
+  // Root mean square deviation of the reference values from their mean (weighted).
+  double reference_spread() const;
 };
 
 // Fails (with a message) when the fit has no uncertainty: too few pairs for the model, no spread in
