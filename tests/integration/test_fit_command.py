@@ -104,3 +104,38 @@ def test_reads_standard_input():
     out = run_rigcal("fit", "-", "--json", input_text="1,1.1\n2,2.0\n3,3.2\n4,3.9\n")
     assert out.returncode == 0, out.stderr
     assert json.loads(out.stdout)["n"] == 4
+
+
+def test_errors_in_variables_reproduces_pearson_york(tmp_path):
+    # Pearson (1901) data with York's weights; published York-fit values in tests/data/pearson_york.expected
+    # (their provenance is stated there: full digits copied from a stored public test of York 2004).
+    expected = read_named("pearson_york.expected")
+    path = tmp_path / "pearson.csv"
+    rows = ["reference,sensor,u_ref,u_sen"]
+    for x, wx, y, wy in read_dat("pearson_york.dat"):
+        rows.append(f"{x},{y},{float(wx) ** -0.5!r},{float(wy) ** -0.5!r}")
+    path.write_text("\n".join(rows) + "\n")
+    out = run_rigcal("fit", path, "--errors-in-variables", "--u-reference-column", "u_ref",
+                     "--u-sensor-column", "u_sen", "--json")
+    assert out.returncode == 0, out.stderr
+    fit = json.loads(out.stdout)
+    assert fit["method"] == "york" and fit["dof"] == 8
+    assert abs(fit["b0"] - expected["a"]) < 5e-10
+    assert abs(fit["b1"] - expected["b"]) < 5e-10
+    assert abs(fit["se_b0"] - expected["sigma_a"]) < 5e-10
+    assert abs(fit["se_b1"] - expected["sigma_b"]) < 5e-11
+    assert abs(fit["york"]["chi_square"] - expected["S_weighted_ssr"]) < 5e-7
+    assert abs(fit["york"]["se_b1_scaled"] - expected["sigma_b_scaled"]) < 5e-12
+    assert fit["s"] is None and fit["r2"] is None
+    text = run_rigcal("fit", path, "--errors-in-variables", "--u-reference-column", "u_ref",
+                      "--u-sensor-column", "u_sen").stdout
+    assert "York fit (uncertainty in both variables)" in text
+
+
+def test_errors_in_variables_needs_both_uncertainties(tmp_path):
+    path = tmp_path / "a.csv"
+    path.write_text("1,1\n2,2.1\n3,2.9\n")
+    assert run_rigcal("fit", path, "--errors-in-variables", "--u-reference", "0.1").returncode == 64
+    assert run_rigcal("fit", path, "--u-sensor", "0.1").returncode == 64
+    out = run_rigcal("fit", path, "--errors-in-variables", "--u-reference", "0.1", "--u-sensor", "0.1", "--json")
+    assert out.returncode == 0 and json.loads(out.stdout)["method"] == "york"

@@ -302,3 +302,31 @@ TEST_CASE("regression: a rig dwelling at one set point while the detector learns
   CHECK(ch.drift().design().centre.x_centre == 100.0);
   CHECK(sink.raised(AlertKind::drift) == 1);
 }
+
+TEST_CASE("with errors in variables the channel's calibration is York's fit, unbiased where OLS is not") {
+  // Reference noise as large as a fifth of the reference spread at one set point pair: OLS slopes are
+  // attenuated by var(x) / (var(x) + u_x^2); York's are not (York et al. 2004).
+  auto c = channel_config();
+  c.reference.noise_sd = 2.0;
+  c.sensor.noise_sd = 0.5;
+  c.fit.errors_in_variables = true;
+  c.fit.memory = stats::MemoryPolicy::Kind::cumulative;
+  c.screening.enabled = false;
+  c.tolerance = {};
+  auto cfg = std::make_shared<const config::ChannelConfig>(c);
+  EngineTables tables;
+  ChannelEngine ch(cfg, config::TimeRules{}, tables);
+  CollectingSink sink;
+  std::mt19937_64 rng(12);
+  std::normal_distribution<double> n01(0.0, 1.0);
+  std::uniform_real_distribution<double> truth(90.0, 110.0);
+  for (int i = 0; i < 20000; ++i) {
+    const double x = truth(rng);
+    ch.on_pair((i + 1) * s, x + 2.0 * n01(rng), x + 0.5 * n01(rng), sink);
+  }
+  const auto york = ch.fit_summary().value();
+  const auto ols = ch.ols_summary().value();
+  CHECK(std::abs(york.b1 - 1.0) < 3 * york.se_b1);
+  CHECK(ols.b1 < 0.9);  // attenuation: 33.3 / (33.3 + 4) = 0.89
+  CHECK(ols.b1 == Approx(33.33 / 37.33).epsilon(0.02));
+}

@@ -12,6 +12,7 @@
 #include "../support/reference_data.hpp"
 #include "rigcal/stats/batch_fit.hpp"
 #include "rigcal/stats/line_accumulator.hpp"
+#include "rigcal/stats/inference.hpp"
 #include "rigcal/stats/line_fit.hpp"
 #include "rigcal/stats/york_fit.hpp"
 
@@ -516,4 +517,30 @@ TEST_CASE("York fit from moments refuses unusable states with a message naming t
   auto s = york_fit_from_moments(same_x.moments(), 0.1, 0.1);
   REQUIRE_FALSE(s.ok());
   CHECK(contains(s.error(), "no spread in the reference values"));
+}
+
+TEST_CASE("the York fit as a LineFit keeps York's covariance in every formula of inference.hpp") {
+  // Pearson data with York weights (tests/data/pearson_york.dat), constant-uncertainty variant
+  // through the moments, then the mapping: leverage and intervals must reproduce u_a, u_b, cov_ab.
+  LineAccumulator acc;
+  std::mt19937_64 rng(8);
+  std::normal_distribution<double> n01(0.0, 1.0);
+  for (int i = 0; i < 200; ++i) {
+    const double x_true = 10.0 * i / 200.0;
+    acc.add(x_true + 0.3 * n01(rng), 1.0 + 2.0 * x_true + 0.5 * n01(rng));
+  }
+  const YorkFit y = york_fit_from_moments(acc.moments(), 0.3, 0.5).value();
+  const LineFit f = line_fit_from_york(y, 0.5);
+  CHECK(f.b1 == y.b);
+  CHECK(f.b0 == Approx(y.a).epsilon(1e-12));
+  CHECK(f.s * std::sqrt(f.leverage(0.0)) == Approx(y.u_a).epsilon(1e-12));  // Var(line at 0) = u_a^2
+  CHECK(f.s / std::sqrt(f.sxx) == Approx(y.u_b).epsilon(1e-12));
+  // Var(a + b x) = u_a^2 + x^2 u_b^2 + 2 x cov_ab at any x
+  for (double x : {-3.0, 2.5, 11.0}) {
+    const double direct = y.u_a * y.u_a + x * x * y.u_b * y.u_b + 2 * x * y.cov_ab;
+    CHECK(f.s * f.s * f.leverage(x) == Approx(direct).epsilon(1e-10));
+  }
+  const TwoSidedT t(0.95);
+  const auto ci = coefficient_intervals(f, t);
+  CHECK(ci.b1.half_width() == Approx(t.critical_value(y.dof) * y.u_b).epsilon(1e-12));
 }

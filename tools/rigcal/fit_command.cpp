@@ -7,6 +7,7 @@
 #include "cli_support.hpp"
 #include "rigcal/stats/inference.hpp"
 #include "rigcal/stats/streaming_fit.hpp"
+#include "rigcal/stats/york_fit.hpp"
 #include "rigcal/table/pair_table.hpp"
 
 namespace rigcal::tool {
@@ -24,16 +25,20 @@ struct FitOptions {
   bool json = false;
   std::optional<double> certified_intercept, certified_slope;
   double u_certified_intercept = 0, u_certified_slope = 0;
+  bool errors_in_variables = false;
+  std::optional<double> u_reference, u_sensor;  // constant standard uncertainties for the York fit
 };
 
 nlohmann::ordered_json interval_json(const Interval& i) { return nlohmann::ordered_json::array({i.lo, i.hi}); }
 
 nlohmann::ordered_json to_json(const FitOptions& o, const LineFit& f, const CoefficientIntervals& ci,
-                       const std::optional<CertificateVerdict>& verdict, const CertifiedLine& cert) {
+                       const std::optional<CertificateVerdict>& verdict, const CertifiedLine& cert,
+                       const std::optional<YorkFit>& york) {
   const bool line = f.model == Model::line;
   nlohmann::ordered_json j = {
       {"source", o.file},
       {"model", line ? "line" : "through_origin"},
+      {"method", york ? "york" : (o.columns.weight.empty() ? "ols" : "wls")},
       {"confidence", o.confidence},
       {"t", ci.t},
       {"n", f.count},
@@ -44,8 +49,8 @@ nlohmann::ordered_json to_json(const FitOptions& o, const LineFit& f, const Coef
       {"se_b1", f.se_b1},
       {"cov_b0_b1", line ? nlohmann::ordered_json(f.cov_b0_b1) : nlohmann::ordered_json()},
       {"corr_b0_b1", line ? nlohmann::ordered_json(f.corr_b0_b1) : nlohmann::ordered_json()},
-      {"s", f.s},
-      {"r2", f.r2 ? nlohmann::ordered_json(*f.r2) : nlohmann::ordered_json()},
+      {"s", york ? nlohmann::ordered_json() : nlohmann::ordered_json(f.s)},
+      {"r2", f.r2 && !york ? nlohmann::ordered_json(*f.r2) : nlohmann::ordered_json()},
       {"ci_b0", line ? interval_json(ci.b0) : nlohmann::ordered_json()},
       {"ci_b1", interval_json(ci.b1)},
       {"mean_x", f.mean_x},
@@ -53,6 +58,13 @@ nlohmann::ordered_json to_json(const FitOptions& o, const LineFit& f, const Coef
       {"sxx", f.sxx},
       {"ssr", f.ssr},
   };
+  if (york)
+    j["york"] = {{"chi_square", york->chi_square},
+                 {"reduced_chi_square", york->reduced_chi_square},
+                 {"p_value", york->p_value},
+                 {"se_b0_scaled", york->u_a_scaled},
+                 {"se_b1_scaled", york->u_b_scaled},
+                 {"iterations", york->iterations}};
   if (verdict) {
     j["certificate"] = {{"intercept", cert.intercept}, {"slope", cert.slope},
                         {"u_intercept", cert.u_intercept}, {"u_slope", cert.u_slope}};
@@ -74,7 +86,8 @@ nlohmann::ordered_json to_json(const FitOptions& o, const LineFit& f, const Coef
 const char* agreement(bool consistent) { return consistent ? "consistent" : "NOT consistent"; }
 
 void print_summary(const FitOptions& o, const table::PairTable& t, const LineFit& f, const CoefficientIntervals& ci,
-                   const std::optional<CertificateVerdict>& verdict, const CertifiedLine& cert) {
+                   const std::optional<CertificateVerdict>& verdict, const CertifiedLine& cert,
+                   const std::optional<YorkFit>& york) {
   const bool line = f.model == Model::line;
   const int pct = static_cast<int>(std::lround(o.confidence * 1000));
   const std::string conf = pct % 10 == 0 ? fmt::format("{}", pct / 10) : fmt::format("{:.1f}", pct / 10.0);
@@ -89,8 +102,16 @@ void print_summary(const FitOptions& o, const table::PairTable& t, const LineFit
                            ci.b1.hi);
   if (line)
     std::cout << fmt::format("  cov(b0, b1)   {:>18.8g}   correlation {:.4f}\n", f.cov_b0_b1, f.corr_b0_b1);
-  std::cout << fmt::format("  residual SD s {:>18.12g}   R^2 {}\n", f.s,
-                           f.r2 ? fmt::format("{:.12g}", *f.r2) : std::string("undefined (no spread in readings)"));
+  if (york) {
+    std::cout << fmt::format("  York fit (uncertainty in both variables): chi^2 {:.6g} on {} dof, reduced {:.4g}, p {:.4g}\n",
+                             york->chi_square, york->dof, york->reduced_chi_square, york->p_value);
+    std::cout << fmt::format("  standard errors from the stated uncertainties; scaled by sqrt(chi^2/dof): SE(b0) {:.8g}, "
+                             "SE(b1) {:.8g}\n",
+                             york->u_a_scaled, york->u_b_scaled);
+  } else {
+    std::cout << fmt::format("  residual SD s {:>18.12g}   R^2 {}\n", f.s,
+                             f.r2 ? fmt::format("{:.12g}", *f.r2) : std::string("undefined (no spread in readings)"));
+  }
   std::cout << fmt::format("  mean {} {:.10g}, mean {} {:.10g}, Sxx {:.10g}\n", t.reference_name, f.mean_x,
                            t.sensor_name, f.mean_y, f.sxx);
   if (!verdict) return;
@@ -128,6 +149,12 @@ int run_fit(const Args& args) {
       ("certified-slope", po::value<double>(), "slope b1* from the sensor's certificate")
       ("certified-intercept-u", po::value(&o.u_certified_intercept), "standard uncertainty of b0* (widens the tests)")
       ("certified-slope-u", po::value(&o.u_certified_slope), "standard uncertainty of b1* (widens the tests)")
+      ("errors-in-variables", po::bool_switch(&o.errors_in_variables),
+       "York fit with uncertainty in both variables (give --u-reference/--u-sensor or their columns)")
+      ("u-reference", po::value<double>(), "standard uncertainty of every reference value (York fit)")
+      ("u-sensor", po::value<double>(), "standard uncertainty of every sensor reading (York fit)")
+      ("u-reference-column", po::value(&o.columns.u_reference), "column of per-row reference uncertainties (York fit)")
+      ("u-sensor-column", po::value(&o.columns.u_sensor), "column of per-row sensor uncertainties (York fit)")
       ("json", po::bool_switch(&o.json), "print one JSON object instead of the summary");
   po::positional_options_description positional;
   positional.add("file", 1);
@@ -135,6 +162,29 @@ int run_fit(const Args& args) {
   if (auto done = parse_command_line("fit", "FILE [options]", args, options, positional, vm)) return *done;
   if (vm.count("certified-intercept")) o.certified_intercept = vm["certified-intercept"].as<double>();
   if (vm.count("certified-slope")) o.certified_slope = vm["certified-slope"].as<double>();
+  if (vm.count("u-reference")) o.u_reference = vm["u-reference"].as<double>();
+  if (vm.count("u-sensor")) o.u_sensor = vm["u-sensor"].as<double>();
+  if (o.errors_in_variables) {
+    const bool x_given = o.u_reference.has_value() != !o.columns.u_reference.empty();
+    const bool y_given = o.u_sensor.has_value() != !o.columns.u_sensor.empty();
+    if (!x_given || !y_given) {
+      std::cerr << "rigcal fit: --errors-in-variables needs one of --u-reference/--u-reference-column and one of "
+                   "--u-sensor/--u-sensor-column\n";
+      return exit_usage;
+    }
+    if ((o.u_reference && !(*o.u_reference > 0)) || (o.u_sensor && !(*o.u_sensor > 0))) {
+      std::cerr << "rigcal fit: uncertainties must be greater than zero\n";
+      return exit_usage;
+    }
+    if (o.through_origin || !o.columns.weight.empty()) {
+      std::cerr << "rigcal fit: --errors-in-variables fits a line with its own weights (no --through-origin, "
+                   "no --weight-column)\n";
+      return exit_usage;
+    }
+  } else if (o.u_reference || o.u_sensor || !o.columns.u_reference.empty() || !o.columns.u_sensor.empty()) {
+    std::cerr << "rigcal fit: uncertainty options need --errors-in-variables\n";
+    return exit_usage;
+  }
 
   if (!(o.confidence > 0 && o.confidence < 1)) {
     std::cerr << "rigcal fit: --confidence must be between 0 and 1 (exclusive), got " << o.confidence << "\n";
@@ -173,6 +223,21 @@ int run_fit(const Args& args) {
   for (std::size_t i = 0; i < table->x.size(); ++i) fit.add(table->x[i], table->y[i], weighted ? table->w[i] : 1.0);
   const Model model = o.through_origin ? Model::through_origin : Model::line;
   auto summary = fit.summary(model);
+  std::optional<YorkFit> york;
+  if (o.errors_in_variables && summary) {
+    const std::size_t n = table->x.size();
+    std::vector<double> ux = table->u_x.empty() ? std::vector<double>(n, *o.u_reference) : table->u_x;
+    std::vector<double> uy = table->u_y.empty() ? std::vector<double>(n, *o.u_sensor) : table->u_y;
+    auto y = york_fit(table->x, ux, table->y, uy);
+    if (!y) {
+      std::cerr << "rigcal fit: " << source << ": York fit: " << y.error().message << "\n";
+      return exit_data;
+    }
+    double sum_uy2 = 0;
+    for (double u : uy) sum_uy2 += u * u;
+    york = y.value();
+    summary = line_fit_from_york(*york, std::sqrt(sum_uy2 / static_cast<double>(n)));
+  }
   if (!summary) {
     std::cerr << "rigcal fit: " << source << ": " << summary.error().message << "\n";
     return exit_data;
@@ -186,9 +251,9 @@ int run_fit(const Args& args) {
     verdict = judge_against_certificate(summary.value(), cert, t, true);
   }
   if (o.json)
-    std::cout << to_json(o, summary.value(), ci, verdict, cert).dump(2) << "\n";
+    std::cout << to_json(o, summary.value(), ci, verdict, cert, york).dump(2) << "\n";
   else
-    print_summary(o, table.value(), summary.value(), ci, verdict, cert);
+    print_summary(o, table.value(), summary.value(), ci, verdict, cert, york);
   return exit_ok;
 }
 

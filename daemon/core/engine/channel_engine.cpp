@@ -6,6 +6,7 @@
 #include "correction.hpp"
 #include "rigcal/config/fingerprint.hpp"
 #include "rigcal/stats/inference.hpp"
+#include "rigcal/stats/york_fit.hpp"
 
 namespace rigcal::engine {
 
@@ -57,6 +58,14 @@ ChannelEngine::ChannelEngine(std::shared_ptr<const config::ChannelConfig> cfg, c
       averager_(static_cast<std::uint64_t>(cfg_->averaging.block_readings),
                 static_cast<std::int64_t>(cfg_->averaging.bucket_s * ns_per_s)) {
   init_tolerance();
+}
+
+Result<stats::LineFit> ChannelEngine::fit_summary() const {
+  if (!cfg_->fit.errors_in_variables) return fit_.summary(cfg_->fit.model);
+  const double u_sensor = cfg_->sensor.noise_sd.value_or(0);
+  auto york = stats::york_fit_from_moments(fit_.moments(), cfg_->reference.noise_sd, u_sensor);
+  if (!york) return york.error();
+  return stats::line_fit_from_york(york.value(), u_sensor);
 }
 
 bool ChannelEngine::convert(double raw, const metrology::Linearisation& lin, double& out, std::string& why) const {
@@ -117,7 +126,7 @@ void ChannelEngine::on_pair(protocol::TimeNs t, double x_raw, double y_raw, Even
   }
   if (!screen_.enabled() || fit_.moments().count < static_cast<std::uint64_t>(cfg_->min_pairs))
     return accept_pair(p, sink);
-  const auto before = fit_.summary(cfg_->fit.model);
+  const auto before = ols_summary();
   if (!before) return accept_pair(p, sink);
   p.residual = OutlierScreen::studentised_residual(before.value(), p.x, p.y, cfg_->sensor.resolution / std::sqrt(12.0));
   const auto verdict = screen_.offer(p);
@@ -141,8 +150,7 @@ void ChannelEngine::accept_pair(const HeldPair& p, EventSink& sink) {
   ++counters_.pairs_in_fit;
   const bool need_summary =
       cfg_->detector.kind == config::DetectorKind::interval || drift_.phase() != DriftMonitor::Phase::monitoring;
-  const Result<stats::LineFit> after = need_summary ? fit_.summary(cfg_->fit.model)
-                                                    : Result<stats::LineFit>(Error{"not needed"});
+  const Result<stats::LineFit> after = need_summary ? fit_summary() : Result<stats::LineFit>(Error{"not needed"});
   const DriftFinding f = drift_.update(p.x, p.y, after);
   if (drift_.take_phase_change()) notify_phase(p.time, sink);
   if (f.evaluated) {

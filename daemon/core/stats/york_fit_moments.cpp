@@ -91,4 +91,26 @@ Result<YorkFit> york_fit_from_moments(const LineMoments& m, double u_x, double u
   return detail::complete_york_fit(s);
 }
 
+LineFit line_fit_from_york(const YorkFit& york, double u_sensor) {
+  LineFit f;
+  f.model = Model::line;
+  f.count = york.count;
+  f.dof = york.dof;
+  f.n = york.dof + 2;
+  f.b0 = york.a;
+  f.b1 = york.b;
+  f.s = u_sensor;
+  f.se_b0 = york.u_a;
+  f.se_b1 = york.u_b;
+  f.cov_b0_b1 = york.cov_ab;
+  f.corr_b0_b1 = york.corr_ab;
+  f.mean_x = york.mean_x_adjusted;
+  f.mean_y = york.mean_y_adjusted;
+  const double s2 = u_sensor * u_sensor;
+  f.sum_w = s2 * york.sum_weights;
+  f.sxx = york.u_b > 0 ? s2 / (york.u_b * york.u_b) : 0.0;
+  f.ssr = york.chi_square * s2;
+  return f;
+}
+
 }  // namespace rigcal::stats

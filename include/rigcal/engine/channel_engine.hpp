@@ -60,7 +60,12 @@ class ChannelEngine {
   void restart_fresh();
 
   const stats::StreamingLineFit& fit() const { return fit_; }
-  Result<stats::LineFit> fit_summary() const { return fit_.summary(cfg_->fit.model); }
+  // The calibration fit every verdict, tolerance judgement and correction uses: ordinary least
+  // squares, or with fit.errors_in_variables the York fit (reference and sensor noise both counted)
+  // in LineFit form (stats::line_fit_from_york).
+  Result<stats::LineFit> fit_summary() const;
+  // Ordinary least squares always: the outlier screen predicts the next pair from it.
+  Result<stats::LineFit> ols_summary() const { return fit_.summary(cfg_->fit.model); }
   CalibrationSnapshot calibration() const;
   const DriftMonitor& drift() const { return drift_; }
   const DriftFinding& last_finding() const { return last_finding_; }

@@ -35,6 +35,7 @@
 
 #include "rigcal/result.hpp"
 #include "rigcal/stats/line_accumulator.hpp"
+#include "rigcal/stats/line_fit.hpp"
 
 namespace rigcal::stats {
 
@@ -118,5 +119,13 @@ Result<YorkFit> york_fit_from_weights(std::span<const double> x, std::span<const
 // Equals york_fit() on the same pairs to rounding. Errors: fewer than 3 pairs (or dof <= 0); u_x or
 // u_y not positive and finite; no spread in the reference values; slope undetermined; overflow.
 Result<YorkFit> york_fit_from_moments(const LineMoments& m, double u_x, double u_y);
+
+// The York fit expressed as a LineFit, so that every interval, verdict and inverse prediction of
+// inference.hpp applies to it unchanged. The mapping keeps York's covariance exactly: s is the
+// sensor's reading noise u_sensor (so the 1/m repeatability term of an inverse prediction is that of
+// one reading), the centroid is York's adjusted centroid, and Sxx and sum_w are set so that
+// s^2 / Sxx = u_b^2 and s^2 / sum_w = 1 / sum W_i (the variance of the line at the centroid).
+// R^2 has no meaning here and is left out. REQUIRES: u_sensor > 0.
+LineFit line_fit_from_york(const YorkFit& york, double u_sensor);
 
 }  // namespace rigcal::stats
