@@ -13,7 +13,7 @@ build_packages="build-essential cmake pkg-config
 # Reference libraries the tests compare against, the fuzzing/sanitizer toolchain,
 # the browser that renders reports in the tests, and small tools the fault tests use.
 test_packages="python3 python3-numpy python3-scipy python3-statsmodels python3-pytest
-  clang libclang-rt-14-dev chromium openssl socat util-linux procps"
+  clang libclang-rt-14-dev chromium openssl util-linux procps"
 
 wanted="$build_packages"
 [ "${1:-}" = "--minimal" ] || wanted="$wanted $test_packages"
