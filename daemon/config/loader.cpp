@@ -126,19 +126,12 @@ LoadResult load_config(std::string_view yaml_text, const std::string& file_name)
   LoadResult result;
   ReadContext ctx;
   ctx.file = file_name;
-  YAML::Node root;
-  try {
-    root = YAML::Load(std::string(yaml_text));
-  } catch (const YAML::Exception& e) {
-    ctx.error(e.mark, "", "not valid YAML: " + e.msg);
+  const std::optional<YAML::Node> parsed = parse_top_map(yaml_text, ctx, "config/rigcald.yaml");
+  if (!parsed) {
     result.errors = std::move(ctx.errors);
     return result;
   }
-  if (!root.IsMap()) {
-    ctx.error(root.Mark(), "", "expected a map of keys at the top level (see config/rigcald.yaml)");
-    result.errors = std::move(ctx.errors);
-    return result;
-  }
+  const YAML::Node& root = *parsed;
   Config& config = result.config;
   config.file = file_name;
   YamlReader top(root, "", ctx);

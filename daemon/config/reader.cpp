@@ -82,6 +82,21 @@ std::string suggest_key(const std::string& unknown, const std::vector<std::strin
   return best;
 }
 
+std::optional<YAML::Node> parse_top_map(std::string_view yaml_text, ReadContext& ctx, const char* example) {
+  YAML::Node root;
+  try {
+    root = YAML::Load(std::string(yaml_text));
+  } catch (const YAML::Exception& e) {
+    ctx.error(e.mark, "", "not valid YAML: " + e.msg);
+    return std::nullopt;
+  }
+  if (!root.IsMap()) {
+    ctx.error(root.Mark(), "", std::string("expected a map of keys at the top level (see ") + example + ")");
+    return std::nullopt;
+  }
+  return root;
+}
+
 YamlReader::YamlReader(YAML::Node map, std::string path, ReadContext& ctx)
     : map_(std::move(map)), path_(std::move(path)), ctx_(ctx) {}
 

@@ -31,6 +31,10 @@ using schema::in_range;
 std::optional<Network> parse_network(const std::string& text);
 std::string suggest_key(const std::string& unknown, const std::vector<std::string>& known);
 
+// Parses a YAML document whose top level must be a map; on failure records the error (with the file
+// named after `example` for the expected shape) and returns nothing.
+std::optional<YAML::Node> parse_top_map(std::string_view yaml_text, ReadContext& ctx, const char* example);
+
 class YamlReader {
  public:
   YamlReader(YAML::Node map, std::string path, ReadContext& ctx);

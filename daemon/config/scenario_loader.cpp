@@ -266,19 +266,12 @@ ScenarioLoadResult load_scenario(std::string_view yaml_text, const std::string& 
   ScenarioLoadResult result;
   ReadContext ctx;
   ctx.file = file_name;
-  YAML::Node root;
-  try {
-    root = YAML::Load(std::string(yaml_text));
-  } catch (const YAML::Exception& e) {
-    ctx.error(e.mark, "", "not valid YAML: " + e.msg);
+  const std::optional<YAML::Node> parsed = parse_top_map(yaml_text, ctx, "config/demo-scenario.yaml");
+  if (!parsed) {
     result.errors = std::move(ctx.errors);
     return result;
   }
-  if (!root.IsMap()) {
-    ctx.error(root.Mark(), "", "expected a map of keys at the top level (see config/demo-scenario.yaml)");
-    result.errors = std::move(ctx.errors);
-    return result;
-  }
+  const YAML::Node& root = *parsed;
   Scenario& s = result.scenario;
   YamlReader top(root, "", ctx);
   top.text("name", s.name, "", Need::required);
