@@ -214,6 +214,7 @@ struct Gathered {
   report::ReportData data;
   report::ReportOptions options;
   std::string source;  // for messages
+  std::optional<report::MonitoringHistory> monitoring;  // journal reports
 };
 
 // Reads the CSV source. Returns an exit status on failure (after printing the reason).
@@ -298,6 +299,12 @@ std::optional<int> gather_journal(const ReportCommandOptions& c, Gathered& g) {
                                 scan->segments, scan->archived_segments, c.config);
   if (sel.since) g.labels.period_from = protocol::format_rfc3339(*sel.since, 3);
   if (sel.until) g.labels.period_until = protocol::format_rfc3339(*sel.until, 3);
+  auto history = report::replay_monitoring(c.journal, loaded.config, *ch, sel.until);
+  if (!history) {
+    std::cerr << "rigcal report: " << history.error().message << "\n";
+    return exit_no_input;
+  }
+  g.monitoring = std::move(history).value();
   return std::nullopt;
 }
 
@@ -346,6 +353,7 @@ int run_report(const Args& args) {
     std::cerr << "rigcal report: " << g.source << ": " << report.error().message << "\n";
     return exit_data;
   }
+  report.value().monitoring = std::move(g.monitoring);
   if (!write_file(c.output, report::render_html(report.value()))) return exit_io;
   if (!c.text.empty() && !write_file(c.text, report::render_text(report.value()))) return exit_io;
   if (c.text != "-") {

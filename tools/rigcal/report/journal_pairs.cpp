@@ -60,7 +60,7 @@ Result<std::string> read_bytes(const fs::path& path) {
 
 }  // namespace
 
-Result<JournalScan> scan_journal(const std::string& state_directory, const JournalSelection& selection) {
+Result<SegmentList> list_journal_segments(const std::string& state_directory) {
   const fs::path dir(state_directory);
   std::map<std::uint64_t, std::string> segments;
   if (auto s = list_folder(dir, "", segments); !s) return s.error();
@@ -70,11 +70,24 @@ Result<JournalScan> scan_journal(const std::string& state_directory, const Journ
     if (auto s = list_folder(dir / "archive", "archive/", segments); !s) return s.error();
   if (segments.empty())
     return Error{state_directory + ": no journal segments (journal-NNNNNNNNNNNNNNNN.rgj) here or in archive/"};
+  SegmentList list;
+  list.archived = segments.size() - live;
+  for (auto& [number, name] : segments) list.names.push_back(std::move(name));
+  return list;
+}
+
+Result<std::string> read_segment(const std::string& state_directory, const std::string& name) {
+  return read_bytes(fs::path(state_directory) / name);
+}
+
+Result<JournalScan> scan_journal(const std::string& state_directory, const JournalSelection& selection) {
+  auto list = list_journal_segments(state_directory);
+  if (!list) return list.error();
   JournalScan scan;
-  scan.segments = segments.size();
-  scan.archived_segments = segments.size() - live;
-  for (const auto& [number, name] : segments) {
-    auto bytes = read_bytes(dir / name);
+  scan.segments = list->names.size();
+  scan.archived_segments = list->archived;
+  for (const auto& name : list->names) {
+    auto bytes = read_segment(state_directory, name);
     if (!bytes) return bytes.error();
     scan_segment(bytes.value(), name, selection, scan);
   }

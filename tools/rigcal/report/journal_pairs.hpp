@@ -42,6 +42,15 @@ struct JournalScan {
 void scan_segment(std::string_view bytes, const std::string& name, const JournalSelection& selection,
                   JournalScan& scan);
 
+// The segments of a state directory in reading order, as paths relative to it (see above), and how
+// many of them are archived. Error: the directory cannot be read, or holds no segment.
+struct SegmentList {
+  std::vector<std::string> names;
+  std::size_t archived = 0;
+};
+Result<SegmentList> list_journal_segments(const std::string& state_directory);
+Result<std::string> read_segment(const std::string& state_directory, const std::string& name);
+
 // Reads every segment of the state directory (see above). Error: the directory cannot be read, or
 // holds no journal segment, or a segment cannot be read (each message names the path).
 Result<JournalScan> scan_journal(const std::string& state_directory, const JournalSelection& selection);

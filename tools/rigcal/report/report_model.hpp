@@ -19,6 +19,7 @@
 #include "rigcal/stats/inference.hpp"
 #include "rigcal/stats/line_fit.hpp"
 #include "rigcal/stats/york_fit.hpp"
+#include "monitoring_history.hpp"
 
 namespace rigcal::report {
 
@@ -125,6 +126,9 @@ struct Report {
   metrology::CorrectedValue corrected;
   std::vector<AveragingPoint> averaging;        // m = 1 .. 10^4 for the plot
   std::vector<AveragingPoint> averaging_table;  // m = 1, 10, ..., 10^4
+
+  // Journal reports only: the channel replayed through the daemon's engine (monitoring_history.hpp).
+  std::optional<MonitoringHistory> monitoring;
 
   // Sentences for what was not given or could not be done, by section.
   std::vector<std::string> certificate_notes, tolerance_notes, budget_notes, york_notes, data_notes;

@@ -1,5 +1,7 @@
 #include "report_text.hpp"
 
+#include "rigcal/protocol/timestamp.hpp"
+
 #include <algorithm>
 #include <cmath>
 #include <fmt/format.h>
@@ -153,6 +155,13 @@ std::string render_text(const Report& r) {
   out += certificate_block(r);
   out += tolerance_block(r);
   out += budget_block(r);
+  if (r.monitoring) {
+    out += heading("What rigcald saw");
+    for (const auto& s : monitoring_sentences(*r.monitoring, r.labels.units)) out += wrap(s);
+    for (const auto& e : r.monitoring->events)
+      out += wrap(protocol::format_rfc3339(e.time, 0) + "  " + e.kind + " " + e.event + " (" + e.detector + ", " + e.test +
+                  "): " + e.message);
+  }
   out += heading("Cautions");
   for (const auto& c : cautions()) out += wrap("* " + c);
   return out;

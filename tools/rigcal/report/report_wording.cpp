@@ -130,4 +130,33 @@ std::string utc_text(double t_s) {
   return protocol::format_rfc3339(ns, ns % 1000000000 == 0 ? 0 : 3);
 }
 
+std::vector<std::string> monitoring_sentences(const MonitoringHistory& h, const std::string& units) {
+  std::vector<std::string> out;
+  const std::string span = h.first_pair && h.last_pair ? " from " + protocol::format_rfc3339(*h.first_pair, 0) + " to " +
+                                                             protocol::format_rfc3339(*h.last_pair, 0)
+                                                       : "";
+  out.push_back("Replayed through rigcald's own channel engine with the daemon's configuration: " +
+                std::to_string(h.pairs) + " pairs and " + std::to_string(h.readings) + " readings" + span + ", " +
+                std::to_string(h.averages) + " corrected averages, " + std::to_string(h.outliers) +
+                " pairs screened out as outliers, " + std::to_string(h.resets) + " resets.");
+  if (h.oldest_segment_is_not_the_start)
+    out.push_back("The oldest journal segments were retired (journal.retain: remove), so this history starts at the "
+                  "oldest segment kept, not at the channel's first pair; the daemon's own state may differ.");
+  std::string d = "Drift detector: " + h.detector + ", " + h.phase;
+  if (!h.problem.empty()) d += " (" + h.problem + ")";
+  if (h.detector != "interval" && h.sigma > 0) {
+    d += "; noise sigma " + fmt::format("{:.4g}", h.sigma) + " " + units + (h.sigma_learned ? " (learned)" : " (configured)");
+    if (h.arl0_pairs > 0)
+      d += fmt::format("; designed for one false alert per {:.3g} pairs, detecting the design offset change in about "
+                       "{:.3g} pairs and the design slope change in about {:.3g}",
+                       h.arl0_pairs, h.arl1_offset_pairs, h.arl1_slope_pairs);
+  }
+  d += h.drift_alert ? ". A drift alert is raised at the end of the period." : ". No drift alert at the end of the period.";
+  out.push_back(d);
+  std::string f = "Calibration-due forecast: low end of the range " + h.due_low + "; high end " + h.due_high + ".";
+  if (h.due_by) f += " Due by " + protocol::format_rfc3339(*h.due_by, 0) + " (the earliest crossing consistent with the trend).";
+  out.push_back(f);
+  return out;
+}
+
 }  // namespace rigcal::report

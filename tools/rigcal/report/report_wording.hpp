@@ -31,4 +31,7 @@ std::string point_origin_words(metrology::PointOrigin o);
 // A UTC time in seconds as RFC 3339 with whole seconds, or with milliseconds when it has a fraction.
 std::string utc_text(double t_s);
 
+// Sentences of the monitoring history (journal reports): the detector, its state, the forecast.
+std::vector<std::string> monitoring_sentences(const MonitoringHistory& h, const std::string& units);
+
 }  // namespace rigcal::report
