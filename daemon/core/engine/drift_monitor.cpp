@@ -100,7 +100,8 @@ DriftFinding DriftMonitor::interval_rule(const Result<stats::LineFit>& fit) {
   DriftFinding f;
   f.evaluated = true;
   f.present = !(v.joint_consistent && v.slope_consistent && v.intercept_consistent);
-  if (!v.joint_consistent) {
+  // Report the joint test unless only a separate one fails (the joint region is the one to read).
+  if (!v.joint_consistent || (v.slope_consistent && v.intercept_consistent)) {
     f.test = "joint";
     f.statistic = v.joint_statistic;
     f.threshold = v.joint_critical;
@@ -112,10 +113,6 @@ DriftFinding DriftMonitor::interval_rule(const Result<stats::LineFit>& fit) {
     f.test = "intercept";
     f.statistic = std::abs(v.intercept_deviation);
     f.threshold = v.intercept_limit;
-  } else {
-    f.test = "joint";
-    f.statistic = v.joint_statistic;
-    f.threshold = v.joint_critical;
   }
   return f;
 }

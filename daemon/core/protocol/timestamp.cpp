@@ -115,7 +115,7 @@ ParsedTime parse_rfc3339(std::string_view s) {
     return fail("time zone other than UTC: send UTC timestamps ending in 'Z'");
   }
   const std::int64_t days = days_from_civil(year, month, day);
-  const std::int64_t secs = days * 86400 + hour * 3600 + minute * 60 + second;
+  const std::int64_t secs = days * 86400 + std::int64_t{hour} * 3600 + std::int64_t{minute} * 60 + second;
   if (secs > max_seconds) return fail("timestamp beyond the year 2200");
   return ParsedTime{secs * ns_per_s + ns, {""}};
 }

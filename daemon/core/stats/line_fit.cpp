@@ -51,7 +51,7 @@ Result<LineFit> summarize(const LineMoments& m, Model model) {
   f.mean_y = m.shift_y + m.dmean_y;
   const int params = model == Model::line ? 2 : 1;
   f.dof = f.n - params;
-  if (m.count < static_cast<std::uint64_t>(params + 1) || !(f.dof > 0)) return too_few(f.n, params + 1);
+  if (m.count <= static_cast<std::uint64_t>(params) || !(f.dof > 0)) return too_few(f.n, params + 1);
 
   if (model == Model::line) {
     if (!(m.cxx > 0)) return Error{"no spread in the reference values: every pair has the same reference value"};
