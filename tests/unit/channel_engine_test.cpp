@@ -1,6 +1,7 @@
 // The channel engine end to end in process: determinism across a checkpoint, one alert per drift
 // (no flapping), spikes screened out, and the historian's uncertainty equal to the GUM budget.
 #include <catch2/catch.hpp>
+#include <algorithm>
 #include <cmath>
 #include <memory>
 #include <random>
@@ -144,7 +145,8 @@ TEST_CASE("a slope shift injected mid-stream raises exactly one drift alert, whi
     CHECK(sink.raised(AlertKind::drift) == 1);
     CHECK(sink.cleared(AlertKind::drift) == 1);
     CHECK_FALSE(ch.alert_raised());
-    const AlertEvent& e = sink.alerts.front();
+    const AlertEvent& e = *std::find_if(sink.alerts.begin(), sink.alerts.end(),
+                                        [](const AlertEvent& a) { return a.kind == AlertKind::drift; });
     CHECK(e.channel == "TT-101");
     CHECK(e.detector == kind);
     CHECK(e.ne107 == "maintenance_required");

@@ -53,7 +53,7 @@ TEST_CASE("defaults apply when keys are absent") {
   CHECK(c.journal.fsync == FsyncPolicy::interval);
   CHECK(c.channels[0].fit.confidence == 0.95);
   CHECK(c.channels[0].min_pairs == 30);
-  CHECK(c.channels[0].raise_after() == ChannelConfig::default_interval_raise_after);
+  CHECK(c.channels[0].raise_after() == 2 * c.channels[0].fit.window_pairs);  // interval rule: twice the window
 }
 
 TEST_CASE("an unknown key is refused with its place and a suggestion") {

@@ -71,8 +71,7 @@ std::vector<AlphaPoint> anytime_alpha_curve(const StudyChannel& channel, const s
   setting.kind = config::DetectorKind::anytime;
   const auto cfg = make_channel_config(channel, setting);
   // DriftMonitor's learning length (detector.learn_pairs, else min_pairs, at least 3).
-  const std::size_t learn = static_cast<std::size_t>(
-      std::max(cfg->detector.learn_pairs > 0 ? cfg->detector.learn_pairs : cfg->min_pairs, 3));
+  const std::size_t learn = static_cast<std::size_t>(std::max(cfg->learn_pairs(), 3));
   const stats::CertifiedLine line{cfg->certificate.intercept, cfg->certificate.slope, 0, 0, 0};
   const double sigma = *cfg->sensor.noise_sd;
   std::vector<AlphaPoint> curve(grid.size());

@@ -115,8 +115,8 @@ std::string calibration_section(const StudyResults& r) {
     << "**Interval rule**: in-control ARL0 for each persistence (one set of streams per confidence; the rule's "
     << "alert machine counted outside the engine, see calibration.hpp). Chosen: the smallest multiple of 5 at "
     << "or above the target on a log-linear interpolation: **raise_after = " << r.persistence95
-    << " at 95 %**, **" << r.persistence99 << " at 99 %**. The daemon's default, "
-    << config::ChannelConfig::default_interval_raise_after << " at 95 %, is the first row.\n\n"
+    << " at 95 %**, **" << r.persistence99 << " at 99 %**. The grid starts at 25, the daemon's default "
+    << "before this study; the default is now twice fit.window_pairs.\n\n"
     << "| confidence | raise_after | ARL0 (pairs) | alerts / runs |\n| --- | ---: | ---: | ---: |\n";
   auto curve_rows = [&s](const char* conf, const std::vector<PersistencePoint>& c) {
     for (const auto& p : c)

@@ -28,9 +28,7 @@ double min_offset_change(const config::ChannelConfig& c) {
   return 0.25 * mpe;
 }
 
-std::size_t learn_pairs(const config::ChannelConfig& c) {
-  return static_cast<std::size_t>(std::max(c.detector.learn_pairs > 0 ? c.detector.learn_pairs : c.min_pairs, 3));
-}
+std::size_t learn_pairs(const config::ChannelConfig& c) { return static_cast<std::size_t>(std::max(c.learn_pairs(), 3)); }
 
 }  // namespace
 

@@ -4,6 +4,7 @@
 // Every field's key, unit, default and constraint is declared once, in daemon/config/schema.hpp;
 // the defaults below are the ones documented there and in config/reference.md, which is
 // generated from the schema (`rigcald --config-reference`) and checked against it by a test.
+#include <algorithm>
 #include <cstdint>
 #include <limits>
 #include <optional>
@@ -248,11 +249,23 @@ struct ChannelConfig {
     return 0.0;
   }
 
+  // Default persistence: 1 for the sequential detectors (their ARL0 is designed); for the interval
+  // rule twice the fit's window (2000 pairs without a window), which the detector study
+  // (tools/study/results) found puts the rule near a one-false-alert-a-year ARL0 at 1 pair/s; its
+  // re-tested intervals on overlapping windows have no design of their own.
   int raise_after() const {
     if (alert.raise_after) return *alert.raise_after;
-    return detector.kind == DetectorKind::interval ? default_interval_raise_after : 1;
+    if (detector.kind != DetectorKind::interval) return 1;
+    return fit.memory == stats::MemoryPolicy::Kind::window ? 2 * fit.window_pairs : default_interval_raise_after;
   }
-  static constexpr int default_interval_raise_after = 25;
+  static constexpr int default_interval_raise_after = 2000;
+  // Pairs the sequential detectors learn over before they are designed: configured, else min_pairs when
+  // the noise is configured, else at least 500 (a sigma learned from n pairs has a standard error of
+  // about 1/sqrt(2n): 13 % at 30 pairs, 3 % at 500, and the designed ARL0 is very sensitive to it).
+  int learn_pairs() const {
+    if (detector.learn_pairs > 0) return detector.learn_pairs;
+    return sensor.noise_sd ? min_pairs : std::max(min_pairs, 500);
+  }
 };
 
 struct Config {

@@ -322,14 +322,15 @@ void describe(V& v, DetectorConfig& c) {
   v.number("alpha", c.alpha, probability_open, no_unit,
            "anytime: probability of any false alert over unlimited monitoring", Need::optional);
   v.integer("learn_pairs", c.learn_pairs, Range{0, 1000000}, "pairs",
-            "pairs used to learn the noise and the reference centre (0: min_pairs)", Need::optional);
+            "pairs used to learn the noise and the reference centre (0: min_pairs with a configured noise_sd, "
+            "else at least 500)", Need::optional);
 }
 
 template <class V>
 void describe(V& v, AlertPolicy& c) {
   v.optional_integer("raise_after", c.raise_after, Range{1, 1000000}, "evaluations",
                      "consecutive evaluations with a drift finding before an alert is raised (default 1 for the "
-                     "sequential detectors, 25 for interval)");
+                     "sequential detectors; for interval twice fit.window_pairs, or 2000)");
   v.number("raise_after_s", c.raise_after_s, non_negative, "s", "and for at least this long", Need::optional);
   v.integer("clear_after", c.clear_after, Range{1, 1000000}, "evaluations",
             "consecutive evaluations without a finding before the alert clears", Need::optional);
