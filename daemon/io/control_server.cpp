@@ -11,6 +11,7 @@
 #include <spdlog/spdlog.h>
 
 #include "../service/secrets.hpp"
+#include "rigcal/protocol/control_request.hpp"
 
 namespace rigcal::io {
 
@@ -19,7 +20,7 @@ using local = asio::local::stream_protocol;
 
 namespace {
 
-constexpr std::size_t max_request_bytes = 4096;
+constexpr std::size_t max_request_bytes = protocol::max_control_request_bytes;
 
 class ControlConnection : public std::enable_shared_from_this<ControlConnection> {
  public:
@@ -45,7 +46,8 @@ class ControlConnection : public std::enable_shared_from_this<ControlConnection>
       buffer_.consume(n);
       while (!line.empty() && (line.back() == '\n' || line.back() == '\r')) line.pop_back();
       if (!authenticated_) {
-        if (line.rfind("AUTH ", 0) == 0 && service::secrets_equal(line.substr(5), secret_)) {
+        const auto auth = protocol::parse_control_auth(line);
+        if (auth.ok && service::secrets_equal(auth.secret, secret_)) {
           authenticated_ = true;
           return read_line();
         }

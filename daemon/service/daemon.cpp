@@ -11,6 +11,7 @@
 
 #include "exit_codes.hpp"
 #include "rigcal/config/loader.hpp"
+#include "rigcal/protocol/control_request.hpp"
 #include "rigcal/state/checkpoint_format.hpp"
 #include "rigcal/state/journal_format.hpp"
 #include "rigcal/version.hpp"
@@ -466,29 +467,29 @@ std::string Daemon::control_request(const std::string& request) {
   facts.checkpoint_time = checkpoint_time_;
   facts.historian_subscribers = outputs_.historian_subscribers();
   facts.streams = ingest_.streams();
-  std::istringstream words(request);
-  std::string verb, arg;
-  words >> verb >> arg;
+  const protocol::ControlRequest req = protocol::parse_control_request(request);
+  if (!req.ok) return req.error + "\n";
   auto dump = [](const nlohmann::ordered_json& j) {
     return j.dump(-1, ' ', false, nlohmann::ordered_json::error_handler_t::replace) + "\n";
   };
-  if (verb == "status" && arg.empty()) return dump(status_json(facts, counters_, engine_));
-  if (verb == "status") {
-    const engine::ChannelEngine* ch = engine_.find(arg);
-    if (!ch) return "ERR unknown_channel no channel '" + arg + "' is configured\n";
-    return dump(channel_status_json(*ch));
+  switch (req.verb) {
+    case protocol::ControlVerb::status: {
+      if (req.channel.empty()) return dump(status_json(facts, counters_, engine_));
+      const engine::ChannelEngine* ch = engine_.find(req.channel);
+      if (!ch) return "ERR unknown_channel no channel '" + req.channel + "' is configured\n";
+      return dump(channel_status_json(*ch));
+    }
+    case protocol::ControlVerb::metrics: return openmetrics_text(facts, counters_, engine_);
+    case protocol::ControlVerb::reset:
+      if (auto st = ingest_.reset_channel(req.channel, now()); !st) return "ERR reset " + st.error().message + "\n";
+      spdlog::warn("channel {} reset through the control socket (as-left): fit, detectors and alert restart",
+                   req.channel);
+      return "OK reset " + req.channel + "\n";
+    case protocol::ControlVerb::checkpoint:
+      checkpoint(false);
+      return "OK checkpoint requested\n";
   }
-  if (verb == "metrics") return openmetrics_text(facts, counters_, engine_);
-  if (verb == "reset") {
-    if (auto st = ingest_.reset_channel(arg, now()); !st) return "ERR reset " + st.error().message + "\n";
-    spdlog::warn("channel {} reset through the control socket (as-left): fit, detectors and alert restart", arg);
-    return "OK reset " + arg + "\n";
-  }
-  if (verb == "checkpoint") {
-    checkpoint(false);
-    return "OK checkpoint requested\n";
-  }
-  return "ERR unknown_request expected: status [CHANNEL] | metrics | reset CHANNEL | checkpoint\n";
+  return "ERR internal unhandled request\n";
 }
 
 int run(config::Config config) {
