@@ -82,7 +82,8 @@ class ControlConnection : public std::enable_shared_from_this<ControlConnection>
 }  // namespace
 
 ControlServer::ControlServer(asio::io_context& io, std::string path, std::string secret, Handler handler)
-    : io_(io), path_(std::move(path)), secret_(std::move(secret)), handler_(std::move(handler)), acceptor_(io) {}
+    : io_(io), path_(std::move(path)), secret_(std::move(secret)), handler_(std::move(handler)), acceptor_(io),
+      accept_retry_(io) {}
 
 ControlServer::~ControlServer() { stop(); }
 
@@ -102,6 +103,7 @@ Status ControlServer::start() {
 void ControlServer::stop() {
   if (stopped_) return;
   stopped_ = true;
+  accept_retry_.cancel();
   boost::system::error_code ignored;
   acceptor_.close(ignored);
   ::unlink(path_.c_str());
@@ -110,7 +112,14 @@ void ControlServer::stop() {
 void ControlServer::do_accept() {
   acceptor_.async_accept([this](boost::system::error_code ec, local::socket socket) {
     if (stopped_ || ec == asio::error::operation_aborted) return;
-    if (!ec) std::make_shared<ControlConnection>(std::move(socket), secret_, handler_)->start();
+    if (ec) {  // out of descriptors: retry later, not at once (that would spin the I/O thread)
+      spdlog::warn("control socket: accept: {}; retrying in 100 ms", ec.message());
+      accept_retry_.expires_after(std::chrono::milliseconds(100));
+      return accept_retry_.async_wait([this](boost::system::error_code e) {
+        if (!e && !stopped_) do_accept();
+      });
+    }
+    std::make_shared<ControlConnection>(std::move(socket), secret_, handler_)->start();
     do_accept();
   });
 }

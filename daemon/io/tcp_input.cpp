@@ -186,7 +186,13 @@ Result<asio::ssl::context> make_tls_context(const config::TlsConfig& tls) {
 
 TcpInput::TcpInput(asio::io_context& io, const config::TcpInput& cfg, service::Ingest& ingest, std::string secret,
                    std::optional<asio::ssl::context> tls)
-    : io_(io), cfg_(cfg), ingest_(ingest), secret_(std::move(secret)), tls_(std::move(tls)), acceptor_(io) {}
+    : io_(io),
+      cfg_(cfg),
+      ingest_(ingest),
+      secret_(std::move(secret)),
+      tls_(std::move(tls)),
+      acceptor_(io),
+      accept_retry_(io) {}
 
 TcpInput::~TcpInput() { stop(); }
 
@@ -207,6 +213,7 @@ Status TcpInput::start() {
 
 void TcpInput::stop() {
   stopped_ = true;
+  accept_retry_.cancel();
   boost::system::error_code ignored;
   acceptor_.close(ignored);
   while (!connections_.empty()) (*connections_.begin())->stop();
@@ -215,12 +222,22 @@ void TcpInput::stop() {
 void TcpInput::do_accept() {
   acceptor_.async_accept([this](boost::system::error_code ec, tcp::socket socket) {
     if (stopped_ || ec == asio::error::operation_aborted) return;
-    if (ec) {
-      spdlog::warn("input {}: accept: {}", cfg_.name, ec.message());
-    } else {
-      on_accepted(std::move(socket));
-    }
+    if (ec) return on_accept_error(ec);
+    if (accept_errors_ > 0)
+      spdlog::info("input {}: accepting again after {} failed attempts", cfg_.name, accept_errors_);
+    accept_errors_ = 0;
+    on_accepted(std::move(socket));
     do_accept();
+  });
+}
+
+void TcpInput::on_accept_error(const boost::system::error_code& ec) {
+  if (accept_errors_++ == 0)
+    spdlog::error("input {}: accept: {} ({} connections open); retrying every 100 ms", cfg_.name, ec.message(),
+                  connections_.size());
+  accept_retry_.expires_after(std::chrono::milliseconds(100));
+  accept_retry_.async_wait([this](boost::system::error_code e) {
+    if (!e && !stopped_) do_accept();
   });
 }
 

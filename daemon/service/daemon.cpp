@@ -1,5 +1,6 @@
 #include "daemon.hpp"
 
+#include <sys/resource.h>
 #include <sys/stat.h>
 
 #include <boost/asio/post.hpp>
@@ -40,6 +41,19 @@ spdlog::level::level_enum log_level(config::LogLevel l) {
     case config::LogLevel::critical: return spdlog::level::critical;
   }
   return spdlog::level::info;
+}
+
+// Every TCP sender holds a descriptor: a listener with max_connections in the thousands needs more
+// than the usual soft limit of 1024. Raising the soft limit up to the hard one needs no privilege.
+void raise_open_file_limit() {
+  rlimit lim{};
+  if (::getrlimit(RLIMIT_NOFILE, &lim) != 0 || lim.rlim_cur >= lim.rlim_max) return;
+  const rlim_t before = lim.rlim_cur;
+  lim.rlim_cur = lim.rlim_max;
+  if (::setrlimit(RLIMIT_NOFILE, &lim) == 0)
+    spdlog::info("open-file limit raised from {} to {} (the hard limit)", before, lim.rlim_max);
+  else
+    spdlog::warn("open-file limit stays at {}: {}", before, std::strerror(errno));
 }
 
 // Startup failures carry their exit status.
@@ -109,6 +123,7 @@ int Daemon::run() {
   signals_.add(SIGINT);
   signals_.add(SIGHUP);
   ::signal(SIGPIPE, SIG_IGN);
+  raise_open_file_limit();
   try {
     if (auto st = io::prepare_state_directory(cfg_.state_directory); !st) throw StartError{exit_code::state_dir, st.error().message};
     auto lock = io::StateDirectoryLock::acquire(cfg_.state_directory);
