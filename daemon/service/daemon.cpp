@@ -284,6 +284,9 @@ void Daemon::close_inputs() {
 // --- timers and signals ---
 
 void Daemon::start_timers() {
+  // The current minute is under way: its rejects count against log_per_minute already (starting
+  // from 0 made the first tick open a "new" minute and log a second allowance).
+  last_minute_ = now() / 60'000'000'000;
   arm_tick();
   arm_checkpoint();
   if (const std::uint64_t us = systemd::watchdog_ping_interval_us()) arm_watchdog(us);
@@ -454,6 +457,7 @@ void Daemon::stop() {
   if (auto st = journal_.sync_now(); !st) spdlog::error("final journal sync: {}", st.error().message);
   checkpoint(true);
   journal_.close();
+  outputs_.tick_minute(now());  // the count of rejects not logged since the last minute's summary
   outputs_.close();
   if (control_) control_->stop();
 }
