@@ -65,8 +65,11 @@ def test_a_slope_shift_mid_stream_raises_exactly_one_alert_and_clearing_works(tm
         text = hook_out.read_text()
         assert "ARGS --site pilot-plant TT-101 drift_raised cusum " in text
         env_line = [l for l in text.splitlines() if l.startswith("ENV")][0]
-        assert env_line.split()[1:] == ["LANG=C.UTF-8", "PATH=/usr/bin:/bin", "PWD=" + os.getcwd()] or \
-            set(env_line.split()[1:]) <= {"LANG=C.UTF-8", "PATH=/usr/bin:/bin", "PWD=" + os.getcwd(), "SHLVL=1", "_=/usr/bin/env"}
+        # nothing of the daemon's environment: PATH and LANG as rigcald sets them, the rest is the
+        # shell's own (PWD is /, where the hook is started)
+        assert set(env_line.split()[1:]) <= {"LANG=C.UTF-8", "PATH=/usr/bin:/bin", "PWD=/", "SHLVL=1",
+                                             "OLDPWD=/", "_=/usr/bin/env"}, env_line
+        assert {"LANG=C.UTF-8", "PATH=/usr/bin:/bin", "PWD=/"} <= set(env_line.split()[1:]), env_line
         assert '"type":"alert"' in text  # the event's JSON on standard input
     finally:
         assert d.stop() == 0
