@@ -180,21 +180,29 @@ def test_a_stalled_subscriber_does_not_stall_ingest(tmp_path):
         metrics = d.control("metrics")
         dropped = int([l for l in metrics.splitlines() if l.startswith("rigcald_historian_dropped_total")][0].split()[1])
         assert dropped > 0  # the stalled subscriber lost records (counted), ingest did not wait for it
-        # the reader gets the newest records (its own queue may have dropped some, with a gap line)
-        reader.settimeout(30)
-        buf = b""
-        last = 0
-        while last < 4000:
-            chunk = reader.recv(65536)
-            assert chunk, "historian feed closed"
-            buf += chunk
-            *complete, buf = buf.split(b"\n")
-            for line in complete:
-                r = json.loads(line)
-                assert r["type"] in ("average", "gap")
-                if r["type"] == "average":
-                    last = r["seq"]
         assert elapsed < 30
+        # Every subscriber's account is exact: averages received + drops announced in gap lines =
+        # the 4000 published, in order, none twice; and the drops announced are the drops counted.
+        announced = 0
+        for sub in (reader, stalled):  # the stalled one reads at last: its bounded queue, then a gap
+            sub.settimeout(30)
+            buf, seqs, gaps = b"", [], 0
+            while not seqs or seqs[-1] < 4000:
+                chunk = sub.recv(65536)
+                assert chunk, "historian feed closed"
+                buf += chunk
+                *complete, buf = buf.split(b"\n")
+                for line in complete:
+                    r = json.loads(line)
+                    assert r["type"] in ("average", "gap")
+                    if r["type"] == "average":
+                        seqs.append(r["seq"])
+                    else:
+                        gaps += r["dropped"]
+            assert seqs == sorted(set(seqs)), "records out of order or twice"
+            assert len(seqs) + gaps == 4000, (len(seqs), gaps)
+            announced += gaps
+        assert announced == dropped
         stalled.close()
         reader.close()
     finally:
