@@ -129,7 +129,8 @@ void HistorianServer::stop() {
 
 void HistorianServer::do_accept() {
   acceptor_.async_accept([this](boost::system::error_code ec, tcp::socket socket) {
-    if (stopped_ || ec == asio::error::operation_aborted) return;
+    // Aborted first: after stop() the listener may be destroyed before this handler runs.
+    if (ec == asio::error::operation_aborted || stopped_) return;
     if (ec) {  // out of descriptors: retry later, not at once (that would spin the I/O thread)
       spdlog::warn("historian feed: accept: {}; retrying in 100 ms", ec.message());
       accept_retry_.expires_after(std::chrono::milliseconds(100));

@@ -221,7 +221,8 @@ void TcpInput::stop() {
 
 void TcpInput::do_accept() {
   acceptor_.async_accept([this](boost::system::error_code ec, tcp::socket socket) {
-    if (stopped_ || ec == asio::error::operation_aborted) return;
+    // Aborted first: after stop() the listener may be destroyed before this handler runs.
+    if (ec == asio::error::operation_aborted || stopped_) return;
     if (ec) return on_accept_error(ec);
     if (accept_errors_ > 0)
       spdlog::info("input {}: accepting again after {} failed attempts", cfg_.name, accept_errors_);
