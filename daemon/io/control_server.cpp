@@ -111,7 +111,6 @@ void ControlServer::stop() {
 
 void ControlServer::do_accept() {
   acceptor_.async_accept([this](boost::system::error_code ec, local::socket socket) {
-    // Aborted first: after stop() the listener may be destroyed before this handler runs.
     if (ec == asio::error::operation_aborted || stopped_) return;
     if (ec) {  // out of descriptors: retry later, not at once (that would spin the I/O thread)
       spdlog::warn("control socket: accept: {}; retrying in 100 ms", ec.message());

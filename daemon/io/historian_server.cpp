@@ -102,7 +102,10 @@ class HistorianSubscriber : public std::enable_shared_from_this<HistorianSubscri
 HistorianServer::HistorianServer(asio::io_context& io, const config::HistorianListener& cfg, service::Counters& counters)
     : io_(io), cfg_(cfg), counters_(counters), acceptor_(io), accept_retry_(io) {}
 
-HistorianServer::~HistorianServer() { stop(); }
+HistorianServer::~HistorianServer() {
+  stop();
+  *alive_ = false;
+}
 
 Status HistorianServer::start() {
   boost::system::error_code ec;
@@ -128,14 +131,13 @@ void HistorianServer::stop() {
 }
 
 void HistorianServer::do_accept() {
-  acceptor_.async_accept([this](boost::system::error_code ec, tcp::socket socket) {
-    // Aborted first: after stop() the listener may be destroyed before this handler runs.
-    if (ec == asio::error::operation_aborted || stopped_) return;
+  acceptor_.async_accept([this, alive = alive_](boost::system::error_code ec, tcp::socket socket) {
+    if (!*alive || stopped_ || ec == asio::error::operation_aborted) return;
     if (ec) {  // out of descriptors: retry later, not at once (that would spin the I/O thread)
       spdlog::warn("historian feed: accept: {}; retrying in 100 ms", ec.message());
       accept_retry_.expires_after(std::chrono::milliseconds(100));
-      return accept_retry_.async_wait([this](boost::system::error_code e) {
-        if (!e && !stopped_) do_accept();
+      return accept_retry_.async_wait([this, alive = alive_](boost::system::error_code e) {
+        if (!e && *alive && !stopped_) do_accept();
       });
     }
     {

@@ -40,6 +40,8 @@ class HistorianServer {
   service::Counters& counters_;
   boost::asio::ip::tcp::acceptor acceptor_;
   boost::asio::steady_timer accept_retry_;
+  // False once destroyed: a queued accept handler must not touch a destroyed feed (reload, stop).
+  std::shared_ptr<bool> alive_ = std::make_shared<bool>(true);
   std::set<std::shared_ptr<HistorianSubscriber>> subscribers_;
   bool stopped_ = false;
 };

@@ -194,7 +194,10 @@ TcpInput::TcpInput(asio::io_context& io, const config::TcpInput& cfg, service::I
       acceptor_(io),
       accept_retry_(io) {}
 
-TcpInput::~TcpInput() { stop(); }
+TcpInput::~TcpInput() {
+  stop();
+  *alive_ = false;
+}
 
 Status TcpInput::start() {
   boost::system::error_code ec;
@@ -220,9 +223,8 @@ void TcpInput::stop() {
 }
 
 void TcpInput::do_accept() {
-  acceptor_.async_accept([this](boost::system::error_code ec, tcp::socket socket) {
-    // Aborted first: after stop() the listener may be destroyed before this handler runs.
-    if (ec == asio::error::operation_aborted || stopped_) return;
+  acceptor_.async_accept([this, alive = alive_](boost::system::error_code ec, tcp::socket socket) {
+    if (!*alive || stopped_ || ec == asio::error::operation_aborted) return;
     if (ec) return on_accept_error(ec);
     if (accept_errors_ > 0)
       spdlog::info("input {}: accepting again after {} failed attempts", cfg_.name, accept_errors_);
@@ -237,8 +239,8 @@ void TcpInput::on_accept_error(const boost::system::error_code& ec) {
     spdlog::error("input {}: accept: {} ({} connections open); retrying every 100 ms", cfg_.name, ec.message(),
                   connections_.size());
   accept_retry_.expires_after(std::chrono::milliseconds(100));
-  accept_retry_.async_wait([this](boost::system::error_code e) {
-    if (!e && !stopped_) do_accept();
+  accept_retry_.async_wait([this, alive = alive_](boost::system::error_code e) {
+    if (!e && *alive && !stopped_) do_accept();
   });
 }
 

@@ -58,6 +58,9 @@ class TcpInput {
   boost::asio::ip::tcp::acceptor acceptor_;
   boost::asio::steady_timer accept_retry_;
   std::uint64_t accept_errors_ = 0;  // consecutive failed accepts (EMFILE, ENFILE, ENOBUFS...)
+  // False once destroyed: on reload a listener is stopped and destroyed while a completed accept
+  // (or an aborted one) may still be queued; its handler must not touch the listener then.
+  std::shared_ptr<bool> alive_ = std::make_shared<bool>(true);
   std::set<TcpConnection*> connections_;
   bool stopped_ = false;
 };
