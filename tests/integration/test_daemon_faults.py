@@ -72,7 +72,8 @@ def test_kill_9_at_fifteen_random_moments_of_a_fast_stream_loses_and_duplicates_
         assert "200000 sent, 200000 acknowledged, 0 rejected, 0 failed" in out
         assert_fit_is_batch_fit_of(d, pairs)
         st = d.status()
-        assert st["inputs"][0]["rejects_total"] == 0
+        # (the last restart may come after the sender finished: that process has no input counters)
+        assert sum(i["rejects_total"] for i in st["inputs"]) == 0
         assert st["channels"][0]["counters"]["pairs"] == 200_000  # each counted once, resends dropped
     finally:
         if sender.poll() is None:
