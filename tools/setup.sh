@@ -11,9 +11,11 @@ build_packages="build-essential cmake pkg-config
   libboost-dev libboost-program-options-dev libeigen3-dev libspdlog-dev libfmt-dev
   libyaml-cpp-dev nlohmann-json3-dev libsystemd-dev libssl-dev catch2"
 # Reference libraries the tests compare against, the fuzzing/sanitizer toolchain,
-# the browser that renders reports in the tests, and small tools the fault tests use.
+# the browser that renders reports in the tests, and small tools the fault tests use:
+# valgrind (leak check of a daemon life), systemd (systemd-analyze scores the unit offline),
+# openssl (test certificates and s_client), util-linux (mount for the disk-full tmpfs).
 test_packages="python3 python3-numpy python3-scipy python3-statsmodels python3-pytest
-  clang libclang-rt-14-dev chromium openssl util-linux procps"
+  clang libclang-rt-14-dev chromium openssl util-linux procps valgrind systemd"
 
 wanted="$build_packages"
 [ "${1:-}" = "--minimal" ] || wanted="$wanted $test_packages"

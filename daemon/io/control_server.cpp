@@ -11,6 +11,7 @@
 #include <spdlog/spdlog.h>
 
 #include "../service/secrets.hpp"
+#include "rigcal/protocol/control_request.hpp"
 
 namespace rigcal::io {
 
@@ -19,7 +20,7 @@ using local = asio::local::stream_protocol;
 
 namespace {
 
-constexpr std::size_t max_request_bytes = 4096;
+constexpr std::size_t max_request_bytes = protocol::max_control_request_bytes;
 
 class ControlConnection : public std::enable_shared_from_this<ControlConnection> {
  public:
@@ -45,7 +46,8 @@ class ControlConnection : public std::enable_shared_from_this<ControlConnection>
       buffer_.consume(n);
       while (!line.empty() && (line.back() == '\n' || line.back() == '\r')) line.pop_back();
       if (!authenticated_) {
-        if (line.rfind("AUTH ", 0) == 0 && service::secrets_equal(line.substr(5), secret_)) {
+        const auto auth = protocol::parse_control_auth(line);
+        if (auth.ok && service::secrets_equal(auth.secret, secret_)) {
           authenticated_ = true;
           return read_line();
         }
@@ -80,7 +82,8 @@ class ControlConnection : public std::enable_shared_from_this<ControlConnection>
 }  // namespace
 
 ControlServer::ControlServer(asio::io_context& io, std::string path, std::string secret, Handler handler)
-    : io_(io), path_(std::move(path)), secret_(std::move(secret)), handler_(std::move(handler)), acceptor_(io) {}
+    : io_(io), path_(std::move(path)), secret_(std::move(secret)), handler_(std::move(handler)), acceptor_(io),
+      accept_retry_(io) {}
 
 ControlServer::~ControlServer() { stop(); }
 
@@ -100,6 +103,7 @@ Status ControlServer::start() {
 void ControlServer::stop() {
   if (stopped_) return;
   stopped_ = true;
+  accept_retry_.cancel();
   boost::system::error_code ignored;
   acceptor_.close(ignored);
   ::unlink(path_.c_str());
@@ -107,8 +111,15 @@ void ControlServer::stop() {
 
 void ControlServer::do_accept() {
   acceptor_.async_accept([this](boost::system::error_code ec, local::socket socket) {
-    if (stopped_ || ec == asio::error::operation_aborted) return;
-    if (!ec) std::make_shared<ControlConnection>(std::move(socket), secret_, handler_)->start();
+    if (ec == asio::error::operation_aborted || stopped_) return;
+    if (ec) {  // out of descriptors: retry later, not at once (that would spin the I/O thread)
+      spdlog::warn("control socket: accept: {}; retrying in 100 ms", ec.message());
+      accept_retry_.expires_after(std::chrono::milliseconds(100));
+      return accept_retry_.async_wait([this](boost::system::error_code e) {
+        if (!e && !stopped_) do_accept();
+      });
+    }
+    std::make_shared<ControlConnection>(std::move(socket), secret_, handler_)->start();
     do_accept();
   });
 }

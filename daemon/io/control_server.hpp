@@ -4,6 +4,7 @@
 // server writes the handler's answer and closes. Requests and answers are documented in README
 // "Control socket". A client that sends no complete line within 10 s is dropped. I/O thread only.
 #include <boost/asio/io_context.hpp>
+#include <boost/asio/steady_timer.hpp>
 #include <boost/asio/local/stream_protocol.hpp>
 #include <functional>
 #include <string>
@@ -32,6 +33,7 @@ class ControlServer {
   std::string secret_;
   Handler handler_;
   boost::asio::local::stream_protocol::acceptor acceptor_;
+  boost::asio::steady_timer accept_retry_;
   bool stopped_ = false;
 };
 

@@ -100,9 +100,12 @@ class HistorianSubscriber : public std::enable_shared_from_this<HistorianSubscri
 };
 
 HistorianServer::HistorianServer(asio::io_context& io, const config::HistorianListener& cfg, service::Counters& counters)
-    : io_(io), cfg_(cfg), counters_(counters), acceptor_(io) {}
+    : io_(io), cfg_(cfg), counters_(counters), acceptor_(io), accept_retry_(io) {}
 
-HistorianServer::~HistorianServer() { stop(); }
+HistorianServer::~HistorianServer() {
+  stop();
+  *alive_ = false;
+}
 
 Status HistorianServer::start() {
   boost::system::error_code ec;
@@ -120,6 +123,7 @@ Status HistorianServer::start() {
 
 void HistorianServer::stop() {
   stopped_ = true;
+  accept_retry_.cancel();
   boost::system::error_code ignored;
   acceptor_.close(ignored);
   for (auto& s : subscribers_) s->close();
@@ -127,9 +131,16 @@ void HistorianServer::stop() {
 }
 
 void HistorianServer::do_accept() {
-  acceptor_.async_accept([this](boost::system::error_code ec, tcp::socket socket) {
-    if (stopped_ || ec == asio::error::operation_aborted) return;
-    if (!ec) {
+  acceptor_.async_accept([this, alive = alive_](boost::system::error_code ec, tcp::socket socket) {
+    if (!*alive || stopped_ || ec == asio::error::operation_aborted) return;
+    if (ec) {  // out of descriptors: retry later, not at once (that would spin the I/O thread)
+      spdlog::warn("historian feed: accept: {}; retrying in 100 ms", ec.message());
+      accept_retry_.expires_after(std::chrono::milliseconds(100));
+      return accept_retry_.async_wait([this, alive = alive_](boost::system::error_code e) {
+        if (!e && *alive && !stopped_) do_accept();
+      });
+    }
+    {
       boost::system::error_code e2;
       const auto peer = socket.remote_endpoint(e2);
       const std::string who = e2 ? std::string("?") : endpoint_text(peer);

@@ -5,6 +5,7 @@
 // subscriber is sent {"type":"gap","dropped":N} before the next record so it knows. Each record's
 // per-channel "seq" also shows gaps. Subscribers beyond max_subscribers are refused. I/O thread only.
 #include <boost/asio/io_context.hpp>
+#include <boost/asio/steady_timer.hpp>
 #include <boost/asio/ip/tcp.hpp>
 #include <deque>
 #include <memory>
@@ -38,6 +39,9 @@ class HistorianServer {
   config::HistorianListener cfg_;
   service::Counters& counters_;
   boost::asio::ip::tcp::acceptor acceptor_;
+  boost::asio::steady_timer accept_retry_;
+  // False once destroyed: a queued accept handler must not touch a destroyed feed (reload, stop).
+  std::shared_ptr<bool> alive_ = std::make_shared<bool>(true);
   std::set<std::shared_ptr<HistorianSubscriber>> subscribers_;
   bool stopped_ = false;
 };

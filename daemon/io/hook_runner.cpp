@@ -44,7 +44,7 @@ void HookRunner::stop() {
   boost::system::error_code ignored;
   sigchld_.cancel(ignored);
   for (auto& [pid, r] : running_) {
-    ::kill(pid, SIGKILL);
+    ::kill(-pid, SIGKILL);
     ::waitpid(pid, nullptr, 0);
   }
   running_.clear();
@@ -71,11 +71,26 @@ void HookRunner::start(Job job) {
     ::close(in_pipe[1]);
     return spdlog::error("alert hook: pipe: {}", std::strerror(errno));
   }
+  // The hook gets its standard streams and nothing else of rigcald: no inherited descriptor (Asio's
+  // sockets are not close-on-exec: listeners and senders' connections would leak into it), the
+  // working directory /, default signal dispositions (rigcald ignores SIGPIPE) and an empty signal
+  // mask, and a process group of its own so that a timeout kills whatever it started too.
   posix_spawn_file_actions_t actions;
   posix_spawn_file_actions_init(&actions);
   posix_spawn_file_actions_adddup2(&actions, in_pipe[0], 0);
   posix_spawn_file_actions_addopen(&actions, 1, "/dev/null", O_WRONLY, 0);
   posix_spawn_file_actions_adddup2(&actions, err_pipe[1], 2);
+  posix_spawn_file_actions_addclosefrom_np(&actions, 3);
+  posix_spawn_file_actions_addchdir_np(&actions, "/");
+  posix_spawnattr_t attr;
+  posix_spawnattr_init(&attr);
+  sigset_t none, defaults;
+  sigemptyset(&none);
+  sigfillset(&defaults);
+  posix_spawnattr_setsigmask(&attr, &none);
+  posix_spawnattr_setsigdefault(&attr, &defaults);
+  posix_spawnattr_setpgroup(&attr, 0);
+  posix_spawnattr_setflags(&attr, POSIX_SPAWN_SETSIGMASK | POSIX_SPAWN_SETSIGDEF | POSIX_SPAWN_SETPGROUP);
   std::vector<std::string> argv_text;
   argv_text.push_back(cfg_.program);
   for (const auto& a : cfg_.args) argv_text.push_back(a);
@@ -87,8 +102,9 @@ void HookRunner::start(Job job) {
   char lang_env[] = "LANG=C.UTF-8";
   char* envp[] = {path_env, lang_env, nullptr};
   pid_t pid = 0;
-  const int rc = posix_spawn(&pid, cfg_.program.c_str(), &actions, nullptr, argv.data(), envp);
+  const int rc = posix_spawn(&pid, cfg_.program.c_str(), &actions, &attr, argv.data(), envp);
   posix_spawn_file_actions_destroy(&actions);
+  posix_spawnattr_destroy(&attr);
   ::close(in_pipe[0]);
   ::close(err_pipe[1]);
   ++counters_.hook_runs;
@@ -112,7 +128,7 @@ void HookRunner::start(Job job) {
     auto it = running_.find(pid);
     if (it == running_.end()) return;
     it->second->timed_out = true;
-    ::kill(pid, SIGKILL);
+    ::kill(-pid, SIGKILL);  // its process group: the hook and anything it started
   });
   running_.emplace(pid, std::move(r));
   read_stderr(pid);

@@ -1,9 +1,11 @@
 #pragma once
 // Runs the alert hook program for each alert event: without a shell (posix_spawn), with a clean
-// environment (PATH=/usr/bin:/bin and LANG=C.UTF-8 only), the configured arguments followed by the
+// environment (PATH=/usr/bin:/bin and LANG=C.UTF-8 only), no descriptor of rigcald's but its three
+// standard streams, working directory /, default signal handling, in a process group of its own;
+// the configured arguments followed by the
 // event's (channel, event, detector, time), the event's JSON on standard input, standard output
 // discarded and the first 4 KiB of standard error kept for the log. A program still running after
-// timeout_s is killed (SIGKILL). At most 4 run at once; up to 100 more events wait; beyond that
+// timeout_s is killed (SIGKILL, with its process group). At most 4 run at once; up to 100 more events wait; beyond that
 // events are dropped for the hook (counted, logged; the alert file still has them). I/O thread only.
 #include <boost/asio/io_context.hpp>
 #include <boost/asio/signal_set.hpp>

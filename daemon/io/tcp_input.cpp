@@ -186,9 +186,18 @@ Result<asio::ssl::context> make_tls_context(const config::TlsConfig& tls) {
 
 TcpInput::TcpInput(asio::io_context& io, const config::TcpInput& cfg, service::Ingest& ingest, std::string secret,
                    std::optional<asio::ssl::context> tls)
-    : io_(io), cfg_(cfg), ingest_(ingest), secret_(std::move(secret)), tls_(std::move(tls)), acceptor_(io) {}
+    : io_(io),
+      cfg_(cfg),
+      ingest_(ingest),
+      secret_(std::move(secret)),
+      tls_(std::move(tls)),
+      acceptor_(io),
+      accept_retry_(io) {}
 
-TcpInput::~TcpInput() { stop(); }
+TcpInput::~TcpInput() {
+  stop();
+  *alive_ = false;
+}
 
 Status TcpInput::start() {
   boost::system::error_code ec;
@@ -207,20 +216,31 @@ Status TcpInput::start() {
 
 void TcpInput::stop() {
   stopped_ = true;
+  accept_retry_.cancel();
   boost::system::error_code ignored;
   acceptor_.close(ignored);
   while (!connections_.empty()) (*connections_.begin())->stop();
 }
 
 void TcpInput::do_accept() {
-  acceptor_.async_accept([this](boost::system::error_code ec, tcp::socket socket) {
-    if (stopped_ || ec == asio::error::operation_aborted) return;
-    if (ec) {
-      spdlog::warn("input {}: accept: {}", cfg_.name, ec.message());
-    } else {
-      on_accepted(std::move(socket));
-    }
+  acceptor_.async_accept([this, alive = alive_](boost::system::error_code ec, tcp::socket socket) {
+    if (!*alive || stopped_ || ec == asio::error::operation_aborted) return;
+    if (ec) return on_accept_error(ec);
+    if (accept_errors_ > 0)
+      spdlog::info("input {}: accepting again after {} failed attempts", cfg_.name, accept_errors_);
+    accept_errors_ = 0;
+    on_accepted(std::move(socket));
     do_accept();
+  });
+}
+
+void TcpInput::on_accept_error(const boost::system::error_code& ec) {
+  if (accept_errors_++ == 0)
+    spdlog::error("input {}: accept: {} ({} connections open); retrying every 100 ms", cfg_.name, ec.message(),
+                  connections_.size());
+  accept_retry_.expires_after(std::chrono::milliseconds(100));
+  accept_retry_.async_wait([this, alive = alive_](boost::system::error_code e) {
+    if (!e && *alive && !stopped_) do_accept();
   });
 }
 

@@ -7,11 +7,14 @@
 //  - a connection that completes no line for idle_timeout_s is closed (a sender trickling one byte a
 //    second never completes a line, so it is timed out too);
 //  - a paused session (journal blocked) stops reading, so TCP flow control holds the sender back;
-//  - replies queue up to 1 MiB per connection; beyond that REJ replies are dropped (ACK and ERR never).
+//  - replies queue up to 1 MiB per connection; beyond that REJ replies are dropped (ACK and ERR never);
+//  - a failed accept (out of descriptors: EMFILE) is retried after 100 ms, logged once per episode:
+//    the pending connection stays in the backlog, and retrying at once would spin the I/O thread.
 // Runs on the I/O thread. stop() closes the acceptor and every connection.
 #include <boost/asio/io_context.hpp>
 #include <boost/asio/ip/tcp.hpp>
 #include <boost/asio/ssl/context.hpp>
+#include <boost/asio/steady_timer.hpp>
 #include <functional>
 #include <memory>
 #include <optional>
@@ -44,6 +47,7 @@ class TcpInput {
 
  private:
   void do_accept();
+  void on_accept_error(const boost::system::error_code& ec);
   void on_accepted(boost::asio::ip::tcp::socket socket);
 
   boost::asio::io_context& io_;
@@ -52,6 +56,11 @@ class TcpInput {
   std::string secret_;
   std::optional<boost::asio::ssl::context> tls_;
   boost::asio::ip::tcp::acceptor acceptor_;
+  boost::asio::steady_timer accept_retry_;
+  std::uint64_t accept_errors_ = 0;  // consecutive failed accepts (EMFILE, ENFILE, ENOBUFS...)
+  // False once destroyed: on reload a listener is stopped and destroyed while a completed accept
+  // (or an aborted one) may still be queued; its handler must not touch the listener then.
+  std::shared_ptr<bool> alive_ = std::make_shared<bool>(true);
   std::set<TcpConnection*> connections_;
   bool stopped_ = false;
 };

@@ -1,5 +1,6 @@
 #include "daemon.hpp"
 
+#include <sys/resource.h>
 #include <sys/stat.h>
 
 #include <boost/asio/post.hpp>
@@ -11,6 +12,7 @@
 
 #include "exit_codes.hpp"
 #include "rigcal/config/loader.hpp"
+#include "rigcal/protocol/control_request.hpp"
 #include "rigcal/state/checkpoint_format.hpp"
 #include "rigcal/state/journal_format.hpp"
 #include "rigcal/version.hpp"
@@ -39,6 +41,19 @@ spdlog::level::level_enum log_level(config::LogLevel l) {
     case config::LogLevel::critical: return spdlog::level::critical;
   }
   return spdlog::level::info;
+}
+
+// Every TCP sender holds a descriptor: a listener with max_connections in the thousands needs more
+// than the usual soft limit of 1024. Raising the soft limit up to the hard one needs no privilege.
+void raise_open_file_limit() {
+  rlimit lim{};
+  if (::getrlimit(RLIMIT_NOFILE, &lim) != 0 || lim.rlim_cur >= lim.rlim_max) return;
+  const rlim_t before = lim.rlim_cur;
+  lim.rlim_cur = lim.rlim_max;
+  if (::setrlimit(RLIMIT_NOFILE, &lim) == 0)
+    spdlog::info("open-file limit raised from {} to {} (the hard limit)", before, lim.rlim_max);
+  else
+    spdlog::warn("open-file limit stays at {}: {}", before, std::strerror(errno));
 }
 
 // Startup failures carry their exit status.
@@ -108,6 +123,7 @@ int Daemon::run() {
   signals_.add(SIGINT);
   signals_.add(SIGHUP);
   ::signal(SIGPIPE, SIG_IGN);
+  raise_open_file_limit();
   try {
     if (auto st = io::prepare_state_directory(cfg_.state_directory); !st) throw StartError{exit_code::state_dir, st.error().message};
     auto lock = io::StateDirectoryLock::acquire(cfg_.state_directory);
@@ -268,6 +284,9 @@ void Daemon::close_inputs() {
 // --- timers and signals ---
 
 void Daemon::start_timers() {
+  // The current minute is under way: its rejects count against log_per_minute already (starting
+  // from 0 made the first tick open a "new" minute and log a second allowance).
+  last_minute_ = now() / 60'000'000'000;
   arm_tick();
   arm_checkpoint();
   if (const std::uint64_t us = systemd::watchdog_ping_interval_us()) arm_watchdog(us);
@@ -438,6 +457,7 @@ void Daemon::stop() {
   if (auto st = journal_.sync_now(); !st) spdlog::error("final journal sync: {}", st.error().message);
   checkpoint(true);
   journal_.close();
+  outputs_.tick_minute(now());  // the count of rejects not logged since the last minute's summary
   outputs_.close();
   if (control_) control_->stop();
 }
@@ -466,29 +486,29 @@ std::string Daemon::control_request(const std::string& request) {
   facts.checkpoint_time = checkpoint_time_;
   facts.historian_subscribers = outputs_.historian_subscribers();
   facts.streams = ingest_.streams();
-  std::istringstream words(request);
-  std::string verb, arg;
-  words >> verb >> arg;
+  const protocol::ControlRequest req = protocol::parse_control_request(request);
+  if (!req.ok) return req.error + "\n";
   auto dump = [](const nlohmann::ordered_json& j) {
     return j.dump(-1, ' ', false, nlohmann::ordered_json::error_handler_t::replace) + "\n";
   };
-  if (verb == "status" && arg.empty()) return dump(status_json(facts, counters_, engine_));
-  if (verb == "status") {
-    const engine::ChannelEngine* ch = engine_.find(arg);
-    if (!ch) return "ERR unknown_channel no channel '" + arg + "' is configured\n";
-    return dump(channel_status_json(*ch));
+  switch (req.verb) {
+    case protocol::ControlVerb::status: {
+      if (req.channel.empty()) return dump(status_json(facts, counters_, engine_));
+      const engine::ChannelEngine* ch = engine_.find(req.channel);
+      if (!ch) return "ERR unknown_channel no channel '" + req.channel + "' is configured\n";
+      return dump(channel_status_json(*ch));
+    }
+    case protocol::ControlVerb::metrics: return openmetrics_text(facts, counters_, engine_);
+    case protocol::ControlVerb::reset:
+      if (auto st = ingest_.reset_channel(req.channel, now()); !st) return "ERR reset " + st.error().message + "\n";
+      spdlog::warn("channel {} reset through the control socket (as-left): fit, detectors and alert restart",
+                   req.channel);
+      return "OK reset " + req.channel + "\n";
+    case protocol::ControlVerb::checkpoint:
+      checkpoint(false);
+      return "OK checkpoint requested\n";
   }
-  if (verb == "metrics") return openmetrics_text(facts, counters_, engine_);
-  if (verb == "reset") {
-    if (auto st = ingest_.reset_channel(arg, now()); !st) return "ERR reset " + st.error().message + "\n";
-    spdlog::warn("channel {} reset through the control socket (as-left): fit, detectors and alert restart", arg);
-    return "OK reset " + arg + "\n";
-  }
-  if (verb == "checkpoint") {
-    checkpoint(false);
-    return "OK checkpoint requested\n";
-  }
-  return "ERR unknown_request expected: status [CHANNEL] | metrics | reset CHANNEL | checkpoint\n";
+  return "ERR internal unhandled request\n";
 }
 
 int run(config::Config config) {

@@ -29,8 +29,14 @@ Result<std::string> read_secret_file(const std::string& path) {
   std::ifstream in(path);
   std::string line;
   if (!in || !std::getline(in, line)) return Error{path + ": cannot read the secret file"};
-  if (!line.empty() && line.back() == '\r') line.pop_back();
-  if (line.empty()) return Error{path + ": the secret is empty"};
+  // The same rule as rigcal's --secret-file: surrounding blanks dropped, one word, because AUTH takes
+  // a single argument: a secret with a space in it could never be sent, and every sender would be
+  // refused.
+  const auto first = line.find_first_not_of(" \t\r");
+  if (first == std::string::npos) return Error{path + ": the secret is empty"};
+  line = line.substr(first, line.find_last_not_of(" \t\r") - first + 1);
+  if (line.find_first_of(" \t") != std::string::npos)
+    return Error{path + ": the secret must be one word (AUTH takes a single argument)"};
   return line;
 }
 

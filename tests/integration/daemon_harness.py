@@ -60,13 +60,17 @@ class Daemon:
             + extra + "channels:" + channels)
         self.proc = None
         self.log_file = None
+        self.command_prefix = []  # e.g. valgrind and its options
+        self.env = None           # None: the test's own environment
+        self.preexec = None       # run in the child before rigcald (resource limits, umask)
 
     def write_config(self, text):
         self.config.write_text(text)
 
     def start(self, expect_ready=True, timeout=20):
         self.log_file = open(self.log_path, "a")
-        self.proc = subprocess.Popen([str(RIGCALD), str(self.config)], stdout=self.log_file, stderr=subprocess.STDOUT)
+        self.proc = subprocess.Popen([*self.command_prefix, str(RIGCALD), str(self.config)], stdout=self.log_file,
+                                     stderr=subprocess.STDOUT, env=self.env, preexec_fn=self.preexec)
         if not expect_ready:
             return self
         deadline = time.time() + timeout

@@ -65,8 +65,11 @@ def test_a_slope_shift_mid_stream_raises_exactly_one_alert_and_clearing_works(tm
         text = hook_out.read_text()
         assert "ARGS --site pilot-plant TT-101 drift_raised cusum " in text
         env_line = [l for l in text.splitlines() if l.startswith("ENV")][0]
-        assert env_line.split()[1:] == ["LANG=C.UTF-8", "PATH=/usr/bin:/bin", "PWD=" + os.getcwd()] or \
-            set(env_line.split()[1:]) <= {"LANG=C.UTF-8", "PATH=/usr/bin:/bin", "PWD=" + os.getcwd(), "SHLVL=1", "_=/usr/bin/env"}
+        # nothing of the daemon's environment: PATH and LANG as rigcald sets them, the rest is the
+        # shell's own (PWD is /, where the hook is started)
+        assert set(env_line.split()[1:]) <= {"LANG=C.UTF-8", "PATH=/usr/bin:/bin", "PWD=/", "SHLVL=1",
+                                             "OLDPWD=/", "_=/usr/bin/env"}, env_line
+        assert {"LANG=C.UTF-8", "PATH=/usr/bin:/bin", "PWD=/"} <= set(env_line.split()[1:]), env_line
         assert '"type":"alert"' in text  # the event's JSON on standard input
     finally:
         assert d.stop() == 0
@@ -177,21 +180,29 @@ def test_a_stalled_subscriber_does_not_stall_ingest(tmp_path):
         metrics = d.control("metrics")
         dropped = int([l for l in metrics.splitlines() if l.startswith("rigcald_historian_dropped_total")][0].split()[1])
         assert dropped > 0  # the stalled subscriber lost records (counted), ingest did not wait for it
-        # the reader gets the newest records (its own queue may have dropped some, with a gap line)
-        reader.settimeout(30)
-        buf = b""
-        last = 0
-        while last < 4000:
-            chunk = reader.recv(65536)
-            assert chunk, "historian feed closed"
-            buf += chunk
-            *complete, buf = buf.split(b"\n")
-            for line in complete:
-                r = json.loads(line)
-                assert r["type"] in ("average", "gap")
-                if r["type"] == "average":
-                    last = r["seq"]
         assert elapsed < 30
+        # Every subscriber's account is exact: averages received + drops announced in gap lines =
+        # the 4000 published, in order, none twice; and the drops announced are the drops counted.
+        announced = 0
+        for sub in (reader, stalled):  # the stalled one reads at last: its bounded queue, then a gap
+            sub.settimeout(30)
+            buf, seqs, gaps = b"", [], 0
+            while not seqs or seqs[-1] < 4000:
+                chunk = sub.recv(65536)
+                assert chunk, "historian feed closed"
+                buf += chunk
+                *complete, buf = buf.split(b"\n")
+                for line in complete:
+                    r = json.loads(line)
+                    assert r["type"] in ("average", "gap")
+                    if r["type"] == "average":
+                        seqs.append(r["seq"])
+                    else:
+                        gaps += r["dropped"]
+            assert seqs == sorted(set(seqs)), "records out of order or twice"
+            assert len(seqs) + gaps == 4000, (len(seqs), gaps)
+            announced += gaps
+        assert announced == dropped
         stalled.close()
         reader.close()
     finally:

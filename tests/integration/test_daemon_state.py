@@ -72,7 +72,8 @@ def test_kill_9_at_random_moments_during_a_replay_loses_and_duplicates_nothing(t
         assert kills >= 2, "the replay finished before the daemon could be killed twice"
         assert "30000 sent, 30000 acknowledged, 0 rejected, 0 failed" in out
         check_fit_equals_batch(d, pairs)
-        assert d.status()["inputs"][0]["rejects_total"] == 0
+        # the last restart may come after the sender finished: that process then has no input counters
+        assert sum(i["rejects_total"] for i in d.status()["inputs"]) == 0
     finally:
         if sender.poll() is None:
             sender.kill()

@@ -82,3 +82,20 @@ TEST_CASE("100 MB without a newline keeps at most max_line_bytes buffered") {
   s.feed("\nP A - 1 2\n", [&](const Line& l) { after.emplace_back(l.text); });
   CHECK(after == std::vector<std::string>{"P A - 1 2"});
 }
+
+// Found by fuzz_line_splitter: an unterminated last line one byte longer than max_line_bytes was
+// delivered whole and not flagged (the buffer keeps a byte for a CR that never came).
+TEST_CASE("an unterminated last line one byte over max_line_bytes is cut and reported too long") {
+  const auto c = split("0123456789x", 1, 10);
+  REQUIRE(c.lines.size() == 1);
+  CHECK(c.lines[0] == "0123456789");
+  CHECK(c.too_long[0]);
+  const auto crlf = split("0123456789\r", 3, 10);  // exactly max_line_bytes and a CR: not too long
+  REQUIRE(crlf.lines.size() == 1);
+  CHECK(crlf.lines[0] == "0123456789");
+  CHECK_FALSE(crlf.too_long[0]);
+  const auto bytes = split(std::string("\x92\x00", 2), 1, 1);  // the fuzzer's input
+  REQUIRE(bytes.lines.size() == 1);
+  CHECK(bytes.lines[0].size() == 1);
+  CHECK(bytes.too_long[0]);
+}

@@ -87,7 +87,14 @@ void LineSplitter::feed(std::string_view bytes, OnLine&& on_line) {
 
 template <class OnLine>
 void LineSplitter::finish(OnLine&& on_line) {
-  if (!partial_.empty() && !discarding_) on_line(Line{strip_cr(partial_), ++number_, false});
+  if (!partial_.empty() && !discarding_) {
+    // partial_ may hold max_ + 1 bytes (room for a CR before the newline that never came).
+    const std::string_view text = strip_cr(partial_);
+    if (text.size() > max_)
+      on_line(Line{text.substr(0, max_), ++number_, true});
+    else
+      on_line(Line{text, ++number_, false});
+  }
   partial_.clear();
   discarding_ = false;
 }
