@@ -151,7 +151,9 @@ void Outputs::on_historian(const engine::HistorianRecord& r) {
   ++counters_.historian_records;
   const bool want_csv = !cfg_.outputs.historian.csv_directory.empty();
   if (!historian_ && !want_csv) return;
-  if (historian_) historian_->publish(std::make_shared<const std::string>(dump(historian_json(r))));
+  // Formatted only when someone reads the feed.
+  if (historian_ && historian_->subscribers() > 0)
+    historian_->publish(std::make_shared<const std::string>(historian_json_line(r)));
   if (want_csv) {
     if (auto st = open_csv_for(r.window_end); !st) {
       spdlog::error("historian CSV: {}", st.error().message);
