@@ -55,20 +55,21 @@ bool fraction_ns(std::string_view s, std::size_t& pos, std::int64_t& ns, const c
   if (pos >= s.size() || s[pos] != '.') return true;
   ++pos;
   std::size_t n = 0;
-  std::int64_t scale = 100'000'000;
   while (pos < s.size() && s[pos] >= '0' && s[pos] <= '9') {
     if (++n > 9) {
       error = "more than 9 fractional digits";
       return false;
     }
-    ns += (s[pos] - '0') * scale;
-    scale /= 10;
+    ns = ns * 10 + (s[pos] - '0');
     ++pos;
   }
   if (n == 0) {
     error = "no digits after the decimal point";
     return false;
   }
+  static constexpr std::int64_t scale[10] = {1'000'000'000, 100'000'000, 10'000'000, 1'000'000, 100'000,
+                                             10'000,        1'000,       100,        10,        1};
+  ns *= scale[n];  // n digits of a fraction: scaled to nine
   return true;
 }
 
