@@ -142,6 +142,9 @@ void HistorianServer::do_accept() {
         asio::write(socket, asio::buffer(std::string("{\"type\":\"error\",\"error\":\"too many subscribers\"}\n")), e2);
         socket.close(e2);
       } else {
+        // Records are small writes: without TCP_NODELAY, Nagle holds each one back until the
+        // previous is acknowledged, and the subscriber's delayed ACK makes that up to 40 ms.
+        socket.set_option(tcp::no_delay(true), e2);
         auto s = std::make_shared<HistorianSubscriber>(*this, std::move(socket), who);
         subscribers_.insert(s);
         spdlog::info("historian subscriber {} connected", who);
