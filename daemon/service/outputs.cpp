@@ -21,7 +21,7 @@ std::string resolve_path(const std::string& state_directory, const std::string& 
 }
 
 Outputs::Outputs(boost::asio::io_context& io, const config::Config& cfg, Counters& counters)
-    : io_(io), cfg_(cfg), counters_(counters) {}
+    : io_(io), cfg_{cfg.state_directory, cfg.outputs}, counters_(counters) {}
 
 Outputs::~Outputs() { close(); }
 
@@ -49,7 +49,7 @@ Status Outputs::open() {
 
 Status Outputs::reconfigure(const config::Config& cfg) {
   close();
-  cfg_ = cfg;
+  cfg_ = {cfg.state_directory, cfg.outputs};
   csv_day_ = -1;
   return open();
 }
