@@ -8,10 +8,14 @@
 //                 detector, alert machine, tolerance checks, averaging (events to a NullSink)
 //   lookup        Engine::find(id) + on_pair: what rigcald's ingest does per record
 //
-// and the memory of the engine (VmRSS growth while the channels are built and their windows filled).
+// and the memory of the engine: bytes in use on the heap (mallinfo2) for the configuration and for
+// the engine once every window is filled, per channel; and VmRSS growth for comparison (RSS also
+// keeps what the YAML parser freed).
 // Records go to channels round robin (warm-up: every window is filled before timing when that is
 // at most 2e7 pairs). Each rate is the best of --repeat runs.
 //   rigcal_bench_engine --config FILE --pairs N [--repeat R]
+#include <malloc.h>
+
 #include <fstream>
 #include <memory>
 #include <random>
@@ -75,6 +79,11 @@ double best_rate(std::size_t ops, int repeat, F&& body) {
 
 double sink = 0;
 
+std::size_t heap_in_use() {
+  const struct mallinfo2 m = ::mallinfo2();
+  return m.uordblks + m.hblkhd;  // small blocks in use + mmapped blocks
+}
+
 }  // namespace
 
 int main(int argc, char** argv) {
@@ -83,8 +92,10 @@ int main(int argc, char** argv) {
   const std::size_t n = args.count("pairs", 5'000'000);
   const int repeat = static_cast<int>(args.count("repeat", 3));
   const ProcSample before_config = sample_self();
+  const std::size_t heap0 = heap_in_use();
   const config::Config cfg = load(args.text("config"));
   const ProcSample after_config = sample_self();
+  const std::size_t heap_config = heap_in_use() - heap0;
   const std::size_t channels = cfg.channels.size();
   const std::size_t window = static_cast<std::size_t>(cfg.channels.front().fit.window_pairs);
   const Pairs p = make_pairs(n, args.count("seed", 1));
@@ -102,8 +113,10 @@ int main(int argc, char** argv) {
   });
 
   const ProcSample before_engine = sample_self();
+  const std::size_t heap1 = heap_in_use();
   engine::Engine eng(cfg);
   const ProcSample built = sample_self();
+  const std::size_t heap_built = heap_in_use() - heap1;
   std::vector<engine::ChannelEngine*> by_index(channels);
   std::vector<std::string> ids(channels);
   for (std::size_t c = 0; c < channels; ++c) {
@@ -118,6 +131,7 @@ int main(int argc, char** argv) {
     by_index[i % channels]->on_pair(p.t[k], p.x[k], p.y[k], null_sink);
   }
   const ProcSample warmed = sample_self();
+  const std::size_t heap_warm = heap_in_use() - heap1;
   std::uint64_t base = warm;
   const double channel_rate = best_rate(n, repeat, [&] {
     for (std::size_t i = 0; i < n; ++i) by_index[(base + i) % channels]->on_pair(p.t[i], p.x[i], p.y[i], null_sink);
@@ -142,6 +156,11 @@ int main(int argc, char** argv) {
   put("engine_built_rss_kib", built.rss_kib - before_engine.rss_kib);
   put("engine_warm_rss_kib", warmed.rss_kib - before_engine.rss_kib);
   put("warmup_pairs", static_cast<std::uint64_t>(warm));
+  const auto per = [channels](std::size_t bytes) { return static_cast<double>(bytes) / static_cast<double>(channels); };
+  put("config_heap_per_channel_b", per(heap_config));
+  put("engine_heap_per_channel_b", per(heap_built));
+  put("engine_warm_heap_per_channel_b", per(heap_warm));
+  put("engine_warm_heap_beyond_window_b", per(heap_warm) - 16.0 * static_cast<double>(window));
   put("outliers", outliers);
   put("checksum", sink + static_cast<double>(in_fit));
   return 0;

@@ -135,8 +135,9 @@ EOF
 }
 
 # start_daemon DIR: starts rigcald, waits until its control socket answers; sets daemon_pid.
+rt_prefix=()  # (chrt -f 20) while the latency runs under SCHED_FIFO
 start_daemon() {
-  "$rigcald" "$1/rigcald.yaml" >"$1/rigcald.log" 2>&1 &
+  "${rt_prefix[@]}" "$rigcald" "$1/rigcald.yaml" >"$1/rigcald.log" 2>&1 &
   daemon_pid=$!
   local deadline=$((SECONDS + 600))
   until control "$1" "status c000000" >/dev/null 2>&1; do
@@ -165,8 +166,9 @@ pipeline() {
   local idle_rss
   idle_rss=$(awk '/VmRSS/ {print $2}' "/proc/$daemon_pid/status")
   # A historian subscriber is always connected (the feed's JSON is made only for subscribers).
-  "$send" --connect "127.0.0.1:$tcp" --channels "$channels" --pairs "$pairs" --control "$dir/state/control.sock" \
-    --watch-pid "$daemon_pid" --historian "127.0.0.1:$hist" --block 100 "$@" >"$work/$name.out"
+  "${rt_prefix[@]}" "$send" --connect "127.0.0.1:$tcp" --channels "$channels" --pairs "$pairs" \
+    --control "$dir/state/control.sock" --watch-pid "$daemon_pid" --historian "127.0.0.1:$hist" --block 100 "$@" \
+    >"$work/$name.out"
   { echo "startup_s=$startup"; echo "idle_rss_kib=$idle_rss"; } >>"$work/$name.out"
   control "$dir" "metrics" >"$work/$name.metrics"
   stop_daemon
@@ -216,7 +218,7 @@ for w in 100 10000; do
     cpu[$c,$w]=$(calc "$(kv "$f" receiver_cpu_s) / $(kv "$f" pairs) * 1e6" 3)
     rss[$c,$w]=$(kv "$f" receiver_rss_kib); hwm[$c,$w]=$(kv "$f" receiver_hwm_kib)
     idle[$c,$w]=$(kv "$f" idle_rss_kib); startup[$c,$w]=$(kv "$f" startup_s)
-    fill[$c,$w]=$(calc "$(kv "$f" pairs) / ($c * $w) * 100" 3)
+    fill[$c,$w]=$(awk -v p="$(kv "$f" pairs)" -v n=$((c * w)) 'BEGIN { v = p / n * 100; if (v > 100) v = 100; printf "%.3g", v }')
   done
 done
 
@@ -260,19 +262,37 @@ ov_rss_last=$(tail -n 1 "$out_dir/memory.csv" | cut -d, -f3)
 "$here/plot_memory.sh" "$out_dir/memory.csv" >"$out_dir/memory.svg"
 
 # ==== 4. latency through the historian feed ====
+# Three ways at each load: rigcald at normal priority (sharing the machine with whatever else runs),
+# rigcald and the sender under SCHED_FIFO (chrt: what a machine without competing load gives), and
+# the floor: the bare reader writing the same feed records with nothing done per pair.
 declare -A lat50 lat99 lat999 latn latrate
+lat_row() {  # lat_row KEY FILE
+  lat50[$1]=$(kv "$2" latency_p50_us); lat99[$1]=$(kv "$2" latency_p99_us)
+  lat999[$1]=$(kv "$2" latency_p999_us); latn[$1]=$(kv "$2" latency_samples)
+}
 for pct in 10 50 90; do
   r=$(whole "${rate[100,100]} * $pct / 100")
   n=$((r * lat_s / 10000 * 10000))
-  log "latency at $pct % of the maximum: $r pairs/s for $lat_s s"
-  pipeline "lat_$pct" 100 100 "$n" --rate "$r"
-  lat50[$pct]=$(kv "$work/lat_$pct.out" latency_p50_us); lat99[$pct]=$(kv "$work/lat_$pct.out" latency_p99_us)
-  lat999[$pct]=$(kv "$work/lat_$pct.out" latency_p999_us); latn[$pct]=$(kv "$work/lat_$pct.out" latency_samples)
   latrate[$pct]=$r
+  log "latency at $pct % of the maximum: $r pairs/s for $lat_s s (normal, SCHED_FIFO, floor)"
+  pipeline "lat_$pct" 100 100 "$n" --rate "$r"
+  lat_row "normal,$pct" "$work/lat_$pct.out"
+  rt_prefix=(chrt -f 20)
+  pipeline "latrt_$pct" 100 100 "$n" --rate "$r"
+  rt_prefix=()
+  lat_row "rt,$pct" "$work/latrt_$pct.out"
+  p=$(port); f=$(port)
+  "$read_bare" --listen "$p" --feed "$f" --channels 100 --block 100 >/dev/null &
+  reader_pid=$!
+  sleep 0.3
+  "$send" --connect "127.0.0.1:$p" --channels 100 --pairs "$n" --rate "$r" --historian "127.0.0.1:$f" --block 100 \
+    >"$work/latfloor_$pct.out"
+  wait "$reader_pid"; reader_pid=""
+  lat_row "floor,$pct" "$work/latfloor_$pct.out"
 done
 
 # ==== 5. the engine alone ====
-declare -A eng_acc eng_fit eng_ch eng_lookup eng_mem
+declare -A eng_acc eng_fit eng_ch eng_lookup eng_mem eng_cfg
 for w in 100 10000; do
   for c in "${channel_counts[@]}"; do
     if [[ $w == 10000 && $c == 100000 ]]; then continue; fi
@@ -282,7 +302,7 @@ for w in 100 10000; do
     f="$work/engine_${c}_$w.out"
     eng_acc[$c,$w]=$(kv "$f" accumulator_per_s); eng_fit[$c,$w]=$(kv "$f" window_fit_per_s)
     eng_ch[$c,$w]=$(kv "$f" channel_per_s); eng_lookup[$c,$w]=$(kv "$f" lookup_per_s)
-    eng_mem[$c,$w]=$(kv "$f" engine_warm_rss_kib)
+    eng_mem[$c,$w]=$(kv "$f" engine_warm_heap_beyond_window_b); eng_cfg[$c,$w]=$(kv "$f" config_heap_per_channel_b)
   done
 done
 rm -rf "$work/engine"
