@@ -161,6 +161,8 @@ int main(int argc, char** argv) {
   put("engine_heap_per_channel_b", per(heap_built));
   put("engine_warm_heap_per_channel_b", per(heap_warm));
   put("engine_warm_heap_beyond_window_b", per(heap_warm) - 16.0 * static_cast<double>(window));
+  put("sizeof_channel_engine", static_cast<std::uint64_t>(sizeof(engine::ChannelEngine)));
+  put("sizeof_channel_config", static_cast<std::uint64_t>(sizeof(config::ChannelConfig)));
   put("outliers", outliers);
   put("checksum", sink + static_cast<double>(in_fit));
   return 0;

@@ -3,6 +3,7 @@
 # from the back-pressure run's samples (t_s,cpu_s,rss_kib), as a small self-contained SVG.
 set -euo pipefail
 awk -F, '
+BEGIN { n = 0 }
 NR == 1 { next }
 { t[n] = $1; c[n] = $2; r[n] = $3 / 1024; n++; if ($1 > tmax) tmax = $1; if ($2 > cmax) cmax = $2; if ($3 / 1024 > rmax) rmax = $3 / 1024 }
 END {
@@ -16,7 +17,7 @@ END {
   for (k = 0; k <= 4; k++) {
     y = T + ph - k * ph / 4
     printf "<line x1=\"%d\" x2=\"%d\" y1=\"%.1f\" y2=\"%.1f\" stroke=\"#eee\"/>\n", L, L + pw, y, y
-    printf "<text x=\"%d\" y=\"%.1f\" text-anchor=\"end\" fill=\"#1f5fa8\">%.0f</text>\n", L - 4, y + 4, k * rtop / 4
+    printf "<text x=\"%d\" y=\"%.1f\" text-anchor=\"end\" fill=\"#1f5fa8\">%.1f</text>\n", L - 4, y + 4, k * rtop / 4
     printf "<text x=\"%d\" y=\"%.1f\" fill=\"#b5522b\">%.1f</text>\n", L + pw + 4, y + 4, k * cmax / 4
     x = L + k * pw / 4
     printf "<text x=\"%.1f\" y=\"%d\" text-anchor=\"middle\">%.0f</text>\n", x, T + ph + 14, k * tmax / 4
@@ -28,5 +29,10 @@ END {
   for (i = 0; i < n; i++) printf "%.1f,%.1f ", L + t[i] / tmax * pw, T + ph - r[i] / rtop * ph
   printf "\"/>\n<polyline fill=\"none\" stroke=\"#b5522b\" stroke-width=\"1.5\" stroke-dasharray=\"4 3\" points=\""
   for (i = 0; i < n; i++) printf "%.1f,%.1f ", L + t[i] / tmax * pw, T + ph - c[i] / cmax * ph
-  printf "\"/>\n</svg>\n"
+  printf "\"/>\n"
+  printf "<line x1=\"%d\" x2=\"%d\" y1=\"%d\" y2=\"%d\" stroke=\"#1f5fa8\" stroke-width=\"2\"/>", L + 10, L + 30, T + 14, T + 14
+  printf "<text x=\"%d\" y=\"%d\">VmRSS</text>\n", L + 36, T + 18
+  printf "<line x1=\"%d\" x2=\"%d\" y1=\"%d\" y2=\"%d\" stroke=\"#b5522b\" stroke-width=\"1.5\" stroke-dasharray=\"4 3\"/>", L + 90, L + 110, T + 14, T + 14
+  printf "<text x=\"%d\" y=\"%d\">CPU time (cumulative)</text>\n", L + 116, T + 18
+  printf "</svg>\n"
 }' "$1"

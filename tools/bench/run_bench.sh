@@ -1,9 +1,9 @@
 #!/usr/bin/env bash
 # The whole-pipeline benchmark: one command, fixed seeds, bounded time.
 #
-#   tools/bench/run_bench.sh [--quick] [--build DIR] [--out FILE]
+#   tools/bench/run_bench.sh [--quick] [--build DIR] [--out DIR]
 #
-# Full run ~15-25 min on a 2-core machine, --quick ~2-3 min (smaller counts, one repeat, windows
+# Full run ~15-20 min on a 2-core machine, --quick ~3 min (smaller counts, one repeat, windows
 # not all filled). It builds the Release tree, then measures side by side (roadmap):
 #   1. bare limit: rigcal_bench_read counting lines from the generator over loopback TCP, from a
 #      file and through a pseudo-terminal;
@@ -39,7 +39,7 @@ if [[ $quick == 1 ]]; then
   bare_pairs=5000000; pipe_pairs=3000000; pty_pairs=1000000; repeat=1; lat_s=4; fill_cap=3000000
   engine_pairs=2000000; eigen_updates=(20000 200); sm_updates=(1000 100); overload_s=8
 else
-  bare_pairs=30000000; pipe_pairs=20000000; pty_pairs=5000000; repeat=3; lat_s=12; fill_cap=100000000
+  bare_pairs=30000000; pipe_pairs=30000000; pty_pairs=5000000; repeat=3; lat_s=15; fill_cap=100000000
   engine_pairs=10000000; eigen_updates=(200000 2000); sm_updates=(4000 400); overload_s=30
 fi
 channel_counts=(1 100 10000 100000)
@@ -303,6 +303,7 @@ for w in 100 10000; do
     eng_acc[$c,$w]=$(kv "$f" accumulator_per_s); eng_fit[$c,$w]=$(kv "$f" window_fit_per_s)
     eng_ch[$c,$w]=$(kv "$f" channel_per_s); eng_lookup[$c,$w]=$(kv "$f" lookup_per_s)
     eng_mem[$c,$w]=$(kv "$f" engine_warm_heap_beyond_window_b); eng_cfg[$c,$w]=$(kv "$f" config_heap_per_channel_b)
+    sizeof_engine=$(kv "$f" sizeof_channel_engine); sizeof_config=$(kv "$f" sizeof_channel_config)
   done
 done
 rm -rf "$work/engine"

@@ -42,7 +42,7 @@ per_channel() {  # per_channel C W -> bytes
   echo "| bare reader, file (page cache) | $(fmt_rate "$bare_file") | $(ratio "$bare_file" "$bare_tcp") of TCP | |"
   echo "| bare reader, pty ($(printf '%.1f' "$bare_pty_mib") MiB/s) | $(fmt_rate "$bare_pty") | $(ratio "$bare_pty" "$bare_tcp") of TCP | |"
   echo "| **rigcald, loopback TCP** (100 channels, window 100) | **$(fmt_rate "${rate[100,100]}")** | $(ratio "${rate[100,100]}" "$bare_tcp") of bare TCP | ${cpu[100,100]} |"
-  echo "| rigcald, pty (100 channels, window 100) | $(fmt_rate "$pty_rate") | $(ratio "$pty_rate" "$bare_pty") of bare pty | $pty_cpu |"
+  echo "| rigcald, pty at 4 000 000 baud (100 channels, window 100) | $(fmt_rate "$pty_rate") | $(ratio "$pty_rate" "$bare_pty") of bare pty | $pty_cpu |"
   echo "| engine alone, ChannelEngine::on_pair (100 channels, window 100) | $(fmt_rate "${eng_ch[100,100]}") | | |"
   echo "| engine alone, Engine::find + on_pair (100 channels, window 100) | $(fmt_rate "${eng_lookup[100,100]}") | | |"
   echo "| engine alone, bare accumulator update | $(fmt_rate "${eng_acc[1,100]}") | | |"
@@ -51,6 +51,9 @@ per_channel() {  # per_channel C W -> bytes
     echo "| OLS refit per pair, Eigen QR (C++), window $w | $(fmt_rate "${eigen[$w]}") | engine $(ratio "${eng_ch[100,$w]:-${eng_ch[1,$w]}}" "${eigen[$w]}")x, rigcald $(ratio "${rate[100,$w]}" "${eigen[$w]}")x faster | |"
     echo "| OLS refit per pair, statsmodels (numpy), window $w | $(fmt_rate "${sm[$w]}") | engine $(ratio "${eng_ch[100,$w]:-${eng_ch[1,$w]}}" "${sm[$w]}")x, rigcald $(ratio "${rate[100,$w]}" "${sm[$w]}")x faster | |"
   done
+  echo
+  echo "A pty ignores its baud rate: it carries what its line discipline can copy. A real serial line"
+  echo "at 4 000 000 baud (8N1) carries 400 000 bytes/s, about $(awk -v b="$line_bytes" 'BEGIN { printf "%.0f", 400000 / b }') of these lines a second."
   echo
   echo "The refit baselines do less per pair than rigcald (coefficients and residual SD only: no"
   echo "screening, no detectors, no I/O); \"x faster\" compares rigcald's engine (in process) and the"
@@ -131,6 +134,8 @@ per_channel() {  # per_channel C W -> bytes
   echo "| p99 latency <= 1 ms at 50 % load (normal priority) | $(printf '%.0f' "${lat99[normal,50]}") us (floor $(printf '%.0f' "${lat99[floor,50]}") us) | $(met "${lat99[normal,50]}" 1000 le) |"
   echo "| p99 latency <= 1 ms at 50 % load (SCHED_FIFO) | $(printf '%.0f' "${lat99[rt,50]}") us | $(met "${lat99[rt,50]}" 1000 le) |"
   pc=$(per_channel 100000 100)
-  echo "| <= 1 KiB per channel + 16 B per windowed pair | rigcald RSS: $pc B per channel beyond the ring (100 000 channels); engine heap: $(printf '%.0f' "${eng_mem[100000,100]}") B beyond the ring + $(printf '%.0f' "${eng_cfg[100000,100]}") B configuration | $(met "$pc" 1024 le) |"
+  echo "| <= 1 KiB per channel + 16 B per windowed pair | rigcald RSS: $pc B per channel beyond the ring (100 000 channels); engine heap: $(printf '%.0f' "${eng_mem[100000,100]}") B beyond the ring (a ChannelEngine object alone is $sizeof_engine B, its ChannelConfig $sizeof_config B) + $(printf '%.0f' "${eng_cfg[100000,100]}") B for the loaded configuration | $(met "$pc" 1024 le) |"
   echo "| no slow-down with channels beyond cache effects | 1 / 100 / 10 000 / 100 000 channels: $(fmt_rate "${rate[1,100]}") / $(fmt_rate "${rate[100,100]}") / $(fmt_rate "${rate[10000,100]}") / $(fmt_rate "${rate[100000,100]}") pairs/s | see above |"
+  echo
+  echo "What limits each figure, and how a site deploys rigcald around them: [SCALING.md](SCALING.md)."
 } >"$out_dir/RESULTS.md"
