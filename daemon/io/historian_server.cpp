@@ -21,7 +21,7 @@ class HistorianSubscriber : public std::enable_shared_from_this<HistorianSubscri
     if (closed_) return;
     if (queue_.size() >= static_cast<std::size_t>(owner_.cfg_.queue_records)) {
       // Drop the oldest queued line that is not already being written.
-      const std::size_t victim = writing_ ? 1 : 0;
+      const std::size_t victim = writing_ ? in_flight_ : 0;
       if (queue_.size() > victim) {
         queue_.erase(queue_.begin() + static_cast<std::ptrdiff_t>(victim));
         ++dropped_;
@@ -72,11 +72,20 @@ class HistorianSubscriber : public std::enable_shared_from_this<HistorianSubscri
       return;
     }
     writing_ = true;
-    current_ = *queue_.front() + "\n";
+    // Everything queued goes in one write. One record per write drained one record per turn of
+    // the event loop, while each turn's read of input can make a dozen: under sustained load the
+    // queue (and the latency of every record in it) grew until queue_records.
+    current_.clear();
+    in_flight_ = 0;
+    while (in_flight_ < queue_.size() && current_.size() < max_write_bytes) {
+      current_ += *queue_[in_flight_++];
+      current_ += '\n';
+    }
     auto self = shared_from_this();
     asio::async_write(socket_, asio::buffer(current_), [this, self](boost::system::error_code ec, std::size_t) {
       if (ec) return finish();
-      if (!queue_.empty()) queue_.pop_front();
+      queue_.erase(queue_.begin(), queue_.begin() + static_cast<std::ptrdiff_t>(std::min(in_flight_, queue_.size())));
+      in_flight_ = 0;
       writing_ = false;
       if (!queue_.empty() || dropped_ > 0) do_write();
     });
@@ -95,6 +104,8 @@ class HistorianSubscriber : public std::enable_shared_from_this<HistorianSubscri
   std::deque<std::shared_ptr<const std::string>> queue_;
   std::string current_, gap_;
   std::array<char, 512> sink_{};
+  static constexpr std::size_t max_write_bytes = 256 * 1024;
+  std::size_t in_flight_ = 0;  // queued lines (at the front of queue_) inside the write under way
   std::uint64_t dropped_ = 0;
   bool writing_ = false, writing_gap_ = false, closed_ = false;
 };
@@ -153,6 +164,9 @@ void HistorianServer::do_accept() {
         asio::write(socket, asio::buffer(std::string("{\"type\":\"error\",\"error\":\"too many subscribers\"}\n")), e2);
         socket.close(e2);
       } else {
+        // Records are small writes: without TCP_NODELAY, Nagle holds each one back until the
+        // previous is acknowledged, and the subscriber's delayed ACK makes that up to 40 ms.
+        socket.set_option(tcp::no_delay(true), e2);
         auto s = std::make_shared<HistorianSubscriber>(*this, std::move(socket), who);
         subscribers_.insert(s);
         spdlog::info("historian subscriber {} connected", who);

@@ -21,7 +21,7 @@ std::string resolve_path(const std::string& state_directory, const std::string& 
 }
 
 Outputs::Outputs(boost::asio::io_context& io, const config::Config& cfg, Counters& counters)
-    : io_(io), cfg_(cfg), counters_(counters) {}
+    : io_(io), cfg_{cfg.state_directory, cfg.outputs}, counters_(counters) {}
 
 Outputs::~Outputs() { close(); }
 
@@ -49,7 +49,7 @@ Status Outputs::open() {
 
 Status Outputs::reconfigure(const config::Config& cfg) {
   close();
-  cfg_ = cfg;
+  cfg_ = {cfg.state_directory, cfg.outputs};
   csv_day_ = -1;
   return open();
 }
@@ -151,7 +151,9 @@ void Outputs::on_historian(const engine::HistorianRecord& r) {
   ++counters_.historian_records;
   const bool want_csv = !cfg_.outputs.historian.csv_directory.empty();
   if (!historian_ && !want_csv) return;
-  if (historian_) historian_->publish(std::make_shared<const std::string>(dump(historian_json(r))));
+  // Formatted only when someone reads the feed.
+  if (historian_ && historian_->subscribers() > 0)
+    historian_->publish(std::make_shared<const std::string>(historian_json_line(r)));
   if (want_csv) {
     if (auto st = open_csv_for(r.window_end); !st) {
       spdlog::error("historian CSV: {}", st.error().message);

@@ -49,8 +49,15 @@ class Outputs final : public engine::EventSink {
   Status open_csv_for(protocol::TimeNs t);
   void log_reject(const std::string& source, const std::string& text);
 
+  // What the outputs need of the configuration. Not the whole Config: its copy of every channel's
+  // configuration cost about 1 KiB per channel here.
+  struct Settings {
+    std::string state_directory;
+    config::Outputs outputs;
+  };
+
   boost::asio::io_context& io_;
-  config::Config cfg_;
+  Settings cfg_;
   Counters& counters_;
   io::AppendFile alerts_, rejects_, csv_;
   std::int64_t csv_day_ = -1;

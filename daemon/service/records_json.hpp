@@ -9,6 +9,8 @@
 namespace rigcal::service {
 
 nlohmann::ordered_json historian_json(const engine::HistorianRecord& r);
+// historian_json(r).dump(-1) without building the JSON value (the feed writes one per record).
+std::string historian_json_line(const engine::HistorianRecord& r);
 std::string historian_csv_header();
 std::string historian_csv_row(const engine::HistorianRecord& r);
 nlohmann::ordered_json alert_json(const engine::AlertEvent& e);

@@ -1,5 +1,9 @@
 // The line protocol's record decoder: what each record means, and why each malformed one is refused.
 #include <catch2/catch.hpp>
+#include <charconv>
+#include <cstring>
+#include <random>
+#include <string>
 
 #include "rigcal/protocol/record.hpp"
 
@@ -94,4 +98,40 @@ TEST_CASE("every reject reason has a stable name and a description") {
     CHECK_FALSE(reject_reason_description(r).empty());
   }
   CHECK(reject_reason_name(RejectReason::unknown_channel) == "unknown_channel");
+}
+
+TEST_CASE("decimal values decode exactly as std::from_chars reads them") {
+  // The decoder reads short plain decimals itself (Clinger's exact fast path) and leaves the rest to
+  // std::from_chars; both must give the same double, bit for bit.
+  std::mt19937_64 rng(11);
+  std::uniform_int_distribution<int> digit(0, 9), int_digits(1, 12), frac_digits(0, 10), sign(0, 2);
+  for (int i = 0; i < 20000; ++i) {
+    std::string v = sign(rng) == 0 ? "-" : "";
+    for (int k = int_digits(rng); k > 0; --k) v += static_cast<char>('0' + digit(rng));
+    if (const int f = frac_digits(rng); f > 0) {
+      v += '.';
+      for (int k = f; k > 0; --k) v += static_cast<char>('0' + digit(rng));
+    }
+    double expected = 0;
+    std::from_chars(v.data(), v.data() + v.size(), expected);
+    const auto d = decode_record("P TT-101 - " + v + " " + v);
+    REQUIRE(d.ok);
+    CHECK(std::memcmp(&d.record.reference, &expected, sizeof expected) == 0);
+  }
+  for (const char* v : {"5.", ".5", "1e3", "-0", "0.1", "123456789012345678", "-.25", "+7.5", "00012.50"}) {
+    double expected = 0;
+    const std::string_view t = v[0] == '+' ? v + 1 : v;
+    std::from_chars(t.data(), t.data() + t.size(), expected);
+    const auto d = decode_record(std::string("P TT-101 - ") + v + " 1");
+    REQUIRE(d.ok);
+    CHECK(std::memcmp(&d.record.reference, &expected, sizeof expected) == 0);
+  }
+}
+
+TEST_CASE("tabs, control characters and UTF-8 are still classified byte by byte") {
+  CHECK(decode_record("P\tTT-101\t-\t1.5\t2.5").ok);
+  CHECK(decode_record("P TT-101 - 1.5 2.5 # caf\xc3\xa9").reason == RejectReason::extra_field);
+  CHECK(decode_record("P TT-101 - 1.5 2.5\x01").reason == RejectReason::control_character);
+  CHECK(decode_record("P TT-101 - 1.5 2.5\x7f").reason == RejectReason::control_character);
+  CHECK(decode_record("P TT-101 - 1.5 2.5\xff").reason == RejectReason::bad_utf8);
 }

@@ -48,7 +48,9 @@ void ChannelEngine::init_tolerance() {
   }
 }
 
-Result<metrology::ToleranceVerdict> ChannelEngine::tolerance_verdict() const {
+Result<metrology::ToleranceVerdict> ChannelEngine::tolerance_verdict() const { return evaluate_tolerance(true); }
+
+Result<metrology::ToleranceVerdict> ChannelEngine::evaluate_tolerance(bool explain) const {
   if (!has_tolerance_) return Error{"no tolerance configured for this channel"};
   const auto fit = fit_summary();
   if (!fit) return fit.error();
@@ -59,6 +61,7 @@ Result<metrology::ToleranceVerdict> ChannelEngine::tolerance_verdict() const {
   o.rule = cfg_->decision_rule == config::DecisionRule::simple ? metrology::DecisionRule::simple_acceptance
                                                                 : metrology::DecisionRule::guarded_acceptance;
   o.guard_band = cfg_->guard_band;
+  o.explain = explain;
   return metrology::judge_tolerance(fit.value(), certified_line(*cfg_), reference_u_, mpe_, range_, o, t_cov_);
 }
 
@@ -96,8 +99,9 @@ void ChannelEngine::after_pair_checks(protocol::TimeNs t, EventSink& sink) {
   if (fit && fit->reference_spread() >= cfg_->min_reference_spread()) take_snapshot(t, fit.value(), sink);
 }
 
+// Every tolerance_check_pairs pairs: only the statements are needed (explain = false).
 void ChannelEngine::check_tolerance(protocol::TimeNs t, EventSink& sink) {
-  const auto v = tolerance_verdict();
+  const auto v = evaluate_tolerance(false);
   if (!v) return;
   const bool fail = v->verdict == metrology::Verdict::fail;
   if (fail == tolerance_alert_) return;
@@ -152,7 +156,7 @@ void ChannelEngine::take_snapshot(protocol::TimeNs t, const stats::LineFit& fit,
 }
 
 void ChannelEngine::fill_tolerance(AlertEvent& e) const {
-  const auto v = tolerance_verdict();
+  const auto v = evaluate_tolerance(false);  // the event carries the verdict and the worst point only
   if (!v) return;
   e.tolerance_verdict = metrology::to_string(v->verdict);
   e.tolerance_rule = v->rule_name;

@@ -4,6 +4,7 @@
 #include <boost/math/distributions/normal.hpp>
 #include <boost/math/distributions/students_t.hpp>
 #include <cmath>
+#include <limits>
 #include <utility>
 
 #include "number_text.hpp"
@@ -138,7 +139,8 @@ PointCheck check_point(const SensorError& e, PointOrigin origin, double mpe, con
   if (options.rule == DecisionRule::guarded_acceptance)
     p.guard_band = options.guard_band.value_or(e.expanded);
   p.margin = mpe - std::abs(e.error);
-  p.probability_beyond_limit = probability_beyond(e.error, e.u, e.dof, mpe);
+  p.probability_beyond_limit =
+      options.explain ? probability_beyond(e.error, e.u, e.dof, mpe) : std::numeric_limits<double>::quiet_NaN();
   p.statement = statement_for(options.rule, std::abs(e.error), mpe, p.guard_band);
   return p;
 }
@@ -173,7 +175,7 @@ Result<ToleranceVerdict> judge_tolerance(const stats::LineFit& fit, const stats:
   ToleranceVerdict v;
   v.rule = options.rule;
   v.rule_name = options.rule == DecisionRule::simple_acceptance ? "simple acceptance" : "guarded acceptance";
-  v.rule_description = rule_description(options.rule, options.guard_band, t.confidence());
+  if (options.explain) v.rule_description = rule_description(options.rule, options.guard_band, t.confidence());
   for (const auto& [x, origin] : candidate_points(fit, certificate, reference, mpe, range, options, t)) {
     auto e = sensor_error_at(fit, certificate, reference, x, t);
     if (!e) return Error{"tolerance verdict: " + e.error().message};

@@ -27,9 +27,38 @@ constexpr Tables make_tables() {
 
 constexpr Tables tables = make_tables();
 
+#if defined(__x86_64__)
+// SSE 4.2's crc32 instruction computes exactly this polynomial (Castagnoli), 8 bytes per step:
+// several times faster than the tables. Chosen at run time, so the binary still runs without it.
+__attribute__((target("sse4.2"))) std::uint32_t crc32c_sse42(const unsigned char* p, std::size_t size,
+                                                              std::uint32_t crc) {
+  std::uint64_t c = ~crc;
+  for (; size >= 8; p += 8, size -= 8) {
+    std::uint64_t word;
+    std::memcpy(&word, p, 8);
+    c = __builtin_ia32_crc32di(c, word);
+  }
+  auto c32 = static_cast<std::uint32_t>(c);
+  while (size--) c32 = __builtin_ia32_crc32qi(c32, *p++);
+  return ~c32;
+}
+
+const bool have_sse42 = [] {
+  __builtin_cpu_init();  // needed before __builtin_cpu_supports in a static initializer
+  return __builtin_cpu_supports("sse4.2") != 0;
+}();
+#endif
+
 }  // namespace
 
 std::uint32_t crc32c(const void* data, std::size_t size, std::uint32_t crc) {
+#if defined(__x86_64__)
+  if (have_sse42) return crc32c_sse42(static_cast<const unsigned char*>(data), size, crc);
+#endif
+  return crc32c_portable(data, size, crc);
+}
+
+std::uint32_t crc32c_portable(const void* data, std::size_t size, std::uint32_t crc) {
   const auto* p = static_cast<const unsigned char*>(data);
   crc = ~crc;
   while (size >= 8) {

@@ -15,10 +15,10 @@ void JournalEncoder::start_segment() {
   entries_ = 0;
 }
 
-std::uint32_t JournalEncoder::id_for(std::unordered_map<std::string, std::uint32_t>& dict,
-                                     std::vector<std::string>& fresh, JournalEntryType type, std::string_view name) {
+std::uint32_t JournalEncoder::id_for(Dictionary& dict, std::vector<std::string>& fresh, JournalEntryType type,
+                                     std::string_view name) {
   if (name.empty()) return 0;
-  const auto it = dict.find(std::string(name));
+  const auto it = dict.find(name);
   if (it != dict.end()) return it->second;
   const auto id = static_cast<std::uint32_t>(dict.size() + 1);
   dict.emplace(std::string(name), id);
@@ -33,13 +33,16 @@ void JournalEncoder::pair(std::string_view channel, std::string_view stream, std
                           double x, double y) {
   const std::uint32_t c = id_for(channels_, fresh_channels_, JournalEntryType::channel, channel);
   const std::uint32_t s = id_for(streams_, fresh_streams_, JournalEntryType::stream, stream);
-  payload_.u8(static_cast<std::uint8_t>(JournalEntryType::pair));
-  payload_.u32(c);
-  payload_.u32(s);
-  payload_.u64(seq);
-  payload_.i64(t);
-  payload_.f64(x);
-  payload_.f64(y);
+  // One append of the whole entry (the journal's most frequent one) instead of seven.
+  char entry[41];
+  entry[0] = static_cast<char>(JournalEntryType::pair);
+  std::memcpy(entry + 1, &c, 4);
+  std::memcpy(entry + 5, &s, 4);
+  std::memcpy(entry + 9, &seq, 8);
+  std::memcpy(entry + 17, &t, 8);
+  std::memcpy(entry + 25, &x, 8);
+  std::memcpy(entry + 33, &y, 8);
+  payload_.raw(entry, sizeof entry);
   ++entries_;
 }
 

@@ -103,6 +103,7 @@ class ChannelEngine {
   void emit_historian(const Block& b, EventSink& sink);
   void notify_phase(protocol::TimeNs t, EventSink& sink);
   void init_tolerance();
+  Result<metrology::ToleranceVerdict> evaluate_tolerance(bool explain) const;
   void after_pair_checks(protocol::TimeNs t, EventSink& sink);
   void take_snapshot(protocol::TimeNs t, const stats::LineFit& fit, EventSink& sink);
   void check_tolerance(protocol::TimeNs t, EventSink& sink);

@@ -52,6 +52,11 @@ struct VerdictOptions {
   DecisionRule rule = DecisionRule::guarded_acceptance;
   std::optional<double> guard_band;  // guarded rule: a fixed w >= 0 (reference units); default U_e(x)
   std::vector<double> extra_points;  // further reference values to check, inside [lo, hi]
+  // false: only the verdict and the points' statements, for a caller that judges often and reads
+  // nothing else (the channel engine's periodic check): rule_description stays empty and every
+  // probability_beyond_limit is NaN. The Student t tail behind that probability costs more than
+  // the rest of the verdict together.
+  bool explain = true;
 };
 
 struct PointCheck {

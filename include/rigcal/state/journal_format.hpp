@@ -64,9 +64,14 @@ class JournalEncoder {
   void abandon_frame();
 
  private:
-  std::uint32_t id_for(std::unordered_map<std::string, std::uint32_t>& dict, std::vector<std::string>& fresh,
-                       JournalEntryType type, std::string_view name);
-  std::unordered_map<std::string, std::uint32_t> channels_, streams_;
+  // Looked up by string_view: a record's name is found without first being copied into a string.
+  struct NameHash {
+    using is_transparent = void;
+    std::size_t operator()(std::string_view s) const { return std::hash<std::string_view>{}(s); }
+  };
+  using Dictionary = std::unordered_map<std::string, std::uint32_t, NameHash, std::equal_to<>>;
+  std::uint32_t id_for(Dictionary& dict, std::vector<std::string>& fresh, JournalEntryType type, std::string_view name);
+  Dictionary channels_, streams_;
   std::vector<std::string> fresh_channels_, fresh_streams_;  // defined in the pending frame
   BinaryWriter payload_;
   std::size_t entries_ = 0;
