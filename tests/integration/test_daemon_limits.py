@@ -8,6 +8,8 @@ import socket
 import subprocess
 import time
 
+import pytest
+
 from daemon_harness import Daemon, ols
 from limits_record import cpu_seconds, open_fds, proc_status, record
 
@@ -113,11 +115,11 @@ def test_running_out_of_descriptors_neither_spins_nor_floods_the_log_and_recover
     raise_own_fd_limit(200)
     d = daemon_with(tmp_path, max_connections=1000, idle_timeout_s=60)
     if os.environ.get("RIGCAL_SANITIZED") == "1":
-        # UBSan's vptr check tests memory readability through a pipe it cannot open without
-        # descriptors, and then reports every virtual call as a bad vptr: not this test's subject.
-        supp = tmp_path / "ubsan.supp"
-        supp.write_text("vptr_check:*\n")
-        d.env = dict(os.environ, UBSAN_OPTIONS=os.environ.get("UBSAN_OPTIONS", "") + f":suppressions={supp}")
+        # UBSan's vptr check tests whether memory is readable through a pipe, which it cannot open
+        # when the process has no descriptor left, and then reports every virtual call as a bad vptr
+        # (and, built not to recover, stops). The Release build runs this test; here it would only
+        # test the sanitizer runtime.
+        pytest.skip("out of descriptors, UBSan's own vptr check fails; run in the Release build")
     start_with_fd_limit(d, 64, 64)  # hard limit 64: rigcald cannot raise it
     socks = []
     try:
