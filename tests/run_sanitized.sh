@@ -12,7 +12,10 @@ src=$(cd "$(dirname "$0")/.." && pwd)
 build=${RIGCAL_SANITIZE_BUILD:-$src/build-sanitize}
 jobs=${JOBS:-2}
 
-cmake -S "$src" -B "$build" -DCMAKE_BUILD_TYPE=RelWithDebInfo -DRIGCAL_SANITIZE=ON -DRIGCAL_WERROR=ON >/dev/null
+# -O1 -g1: what the sanitizers' authors recommend (readable stacks, line numbers), and half the
+# compile time of -O2 -g, which matters because this tree is built on every CI run.
+cmake -S "$src" -B "$build" -DCMAKE_BUILD_TYPE=RelWithDebInfo -DCMAKE_CXX_FLAGS_RELWITHDEBINFO="-O1 -g1 -DNDEBUG" \
+  -DRIGCAL_SANITIZE=ON -DRIGCAL_WERROR=ON >/dev/null
 cmake --build "$build" -j"$jobs"
 # halt_on_error / abort: the first report fails the process that made it; detect_leaks: on exit.
 export ASAN_OPTIONS="detect_leaks=1:abort_on_error=1:strict_string_checks=1:detect_stack_use_after_return=1"

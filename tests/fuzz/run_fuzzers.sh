@@ -1,7 +1,7 @@
 #!/bin/sh
 # Builds the libFuzzer targets with clang (ASan + UBSan) in their own build tree and runs each for
-# SECONDS (default 60), starting from the committed seed corpus. Fails on the first crash, leak,
-# timeout or sanitizer report; the input that did it is left in BUILD/artifacts/.
+# SECONDS (default 60), JOBS at a time, starting from the committed seed corpus. Fails if any target
+# finds a crash, leak, timeout or sanitizer report; the input that did it is left in BUILD/artifacts/.
 #
 #   tests/fuzz/run_fuzzers.sh [SECONDS] [TARGET...]
 #
@@ -24,8 +24,10 @@ cmake -S "$src" -B "$build" -DCMAKE_BUILD_TYPE=RelWithDebInfo -DCMAKE_CXX_COMPIL
 cmake --build "$build" --target rigcal_fuzzers -j"$jobs" >"$build/build.log" 2>&1 || { tail -50 "$build/build.log"; exit 1; }
 
 mkdir -p "$build/artifacts"
-failed=""
-for t in $targets; do
+
+# One target: runs it, prints one line, leaves its log; returns non-zero on a finding.
+run_one() {
+  t=$1
   mkdir -p "$build/corpus/$t"
   log="$build/$t.log"
   start=$(date +%s)
@@ -40,8 +42,26 @@ for t in $targets; do
   else
     echo "fuzz $t: FAILED (see $log)"
     grep -E 'ERROR|SUMMARY|Test unit written' "$log" | head -5
-    failed="$failed $t"
+    return 1
   fi
+}
+
+# JOBS targets at a time, each on its own core.
+failed=""
+set -- $targets
+while [ $# -gt 0 ]; do
+  batch=""
+  i=0
+  while [ $# -gt 0 ] && [ "$i" -lt "$jobs" ]; do
+    run_one "$1" >"$build/$1.result" 2>&1 &
+    batch="$batch $!:$1"
+    i=$((i + 1))
+    shift
+  done
+  for job in $batch; do
+    if ! wait "${job%%:*}"; then failed="$failed ${job#*:}"; fi
+    cat "$build/${job#*:}.result"
+  done
 done
 [ -z "$failed" ] || { echo "run_fuzzers: failures in:$failed"; exit 1; }
 echo "run_fuzzers: every target ran ${seconds} s without a finding"
