@@ -174,7 +174,7 @@ void ChannelEngine::notify_phase(protocol::TimeNs t, EventSink& sink) {
   switch (drift_.phase()) {
     case DriftMonitor::Phase::learning:
       n.message = "learning the reference centre" + std::string(cfg_->sensor.noise_sd ? "" : " and the sensor noise") +
-                  " for the " + d.kind + " detector";
+                  " for the " + std::string(d.kind) + " detector";
       break;
     case DriftMonitor::Phase::monitoring:
       if (d.kind == "interval") {
@@ -186,7 +186,7 @@ void ChannelEngine::notify_phase(protocol::TimeNs t, EventSink& sink) {
                     (d.sigma_learned ? " (learned)" : "") + ", about " + fmt("%.0f", d.arl1_offset_pairs) +
                     " pairs to detect the design change";
       } else {
-        n.message = "monitoring with " + d.kind + ": designed ARL0 " + fmt("%.3g", d.arl0_pairs) +
+        n.message = "monitoring with " + std::string(d.kind) + ": designed ARL0 " + fmt("%.3g", d.arl0_pairs) +
                     " pairs; expected pairs to detect the design offset change " + fmt("%.3g", d.arl1_offset_pairs) +
                     ", slope change " + fmt("%.3g", d.arl1_slope_pairs) + "; sigma " + fmt("%.4g", d.sigma) +
                     (d.sigma_learned ? " (learned)" : "") + ", reference centre " + fmt("%.5g", d.centre.x_centre);

@@ -56,9 +56,8 @@ void DriftMonitor::reset() {
   phase_ = Phase::waiting;
   unavailable_reason_.clear();
   learning_.clear();
-  const std::string kind = design_.kind;
   design_ = DriftDesign{};
-  design_.kind = kind;
+  design_.kind = kind_name(cfg_.detector.kind);
   latched_ = false;
   innovations_.reset();
   detectors_ = std::monostate{};

@@ -15,6 +15,7 @@
 // Designs come from EngineTables and are shared between channels.
 #include <optional>
 #include <string>
+#include <string_view>
 #include <variant>
 #include <vector>
 
@@ -39,7 +40,7 @@ struct DriftFinding {
 
 // What the detector was designed for, for status and the report.
 struct DriftDesign {
-  std::string kind;        // interval, cusum, ewma, anytime
+  std::string_view kind;   // interval, cusum, ewma, anytime (a fixed text)
   double sigma = 0;        // noise SD used to standardise innovations
   bool sigma_learned = false;
   detect::ReferenceCentre centre;
