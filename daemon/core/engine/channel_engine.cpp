@@ -327,8 +327,10 @@ void ChannelEngine::emit_alert(Transition tr, const DriftFinding& f, protocol::T
 
 void ChannelEngine::reset(protocol::TimeNs t, EventSink& sink) {
   // As-left: the trend of the old calibration says nothing about the new one.
-  if (due_low_) due_low_->reset();
-  if (due_high_) due_high_->reset();
+  if (due_) {
+    due_->low.reset();
+    due_->high.reset();
+  }
   next_snapshot_ = 0;
   pairs_since_tolerance_check_ = 0;
   due_alert_ = tolerance_alert_ = false;
@@ -366,8 +368,10 @@ void ChannelEngine::reset(protocol::TimeNs t, EventSink& sink) {
 namespace rigcal::engine {
 
 void ChannelEngine::restart_fresh() {
-  if (due_low_) due_low_->reset();
-  if (due_high_) due_high_->reset();
+  if (due_) {
+    due_->low.reset();
+    due_->high.reset();
+  }
   next_snapshot_ = 0;
   pairs_since_tolerance_check_ = 0;
   due_alert_ = tolerance_alert_ = false;

@@ -137,7 +137,12 @@ class ChannelEngine {
   metrology::MaximumPermissibleError mpe_;
   metrology::SensorRange range_;
   metrology::ReferenceStandardUncertainty reference_u_;
-  std::optional<metrology::DueForecastTracker> due_low_, due_high_;
+  // The trackers at the low and high end of the range, on the heap and only for a channel that
+  // forecasts (tolerance, range and forecast.enabled): two trackers inline would cost every channel.
+  struct DueTrackers {
+    metrology::DueForecastTracker low, high;
+  };
+  std::unique_ptr<DueTrackers> due_;
   protocol::TimeNs next_snapshot_ = 0;
   std::uint64_t pairs_since_tolerance_check_ = 0;
   // The flags together: each alone between 8-byte members would take 8 bytes, in every channel.
