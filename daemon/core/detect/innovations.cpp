@@ -95,7 +95,8 @@ InnovationStream::InnovationStream(const stats::CertifiedLine& line, double sigm
 
 Innovations InnovationStream::next(double x, double y) {
   Innovations out;
-  out.offset = offset_innovation(x, y, stats::CertifiedLine{.intercept = line_intercept_, .slope = line_slope_}, sigma_);
+  const stats::CertifiedLine line{.intercept = line_intercept_, .slope = line_slope_};
+  out.offset = offset_innovation(x, y, line, sigma_);
   out.d = (x - slope_.x_centre()) / x_spread_;
   out.slope = slope_.update(x, out.offset);
   return out;

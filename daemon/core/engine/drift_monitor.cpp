@@ -155,7 +155,8 @@ void DriftMonitor::finish_learning(const Result<stats::LineFit>&) {
       m2 += d * (learning_[i].e - mean);
     }
     const double floor = cfg_.sensor.resolution / std::sqrt(12.0);
-    design_.sigma = std::max(learning_.size() > 1 ? std::sqrt(m2 / static_cast<double>(learning_.size() - 1)) : 0.0, floor);
+    const std::size_t n = learning_.size();
+    design_.sigma = std::max(n > 1 ? std::sqrt(m2 / static_cast<double>(n - 1)) : 0.0, floor);
     design_.sigma_learned = true;
     if (!(design_.sigma > 0))
       return fail("cannot learn the sensor noise: the readings do not scatter; configure sensor.noise_sd");

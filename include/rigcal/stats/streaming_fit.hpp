@@ -76,7 +76,7 @@ class StreamingLineFit {
   // Ring buffer for the window policy, one slot per pair. One array rather than one per
   // coordinate: every channel has a fit, and each array costs a vector and an allocation.
   std::vector<double> ring_;
-  std::size_t head_ = 0;           // slot of the oldest pair
+  std::size_t head_ = 0;  // slot of the oldest pair
   std::size_t size_ = 0;
   std::uint64_t removals_ = 0;
 };
