@@ -119,6 +119,7 @@ ordered_json due_json(const engine::ChannelEngine& ch) {
 
 ordered_json channel_status_json(const engine::ChannelEngine& ch) {
   const auto& c = ch.counters();
+  const auto last_average = ch.last_record();
   ordered_json j = {{"id", ch.config().id},
                     {"description", ch.config().description},
                     {"units", ch.config().units},
@@ -135,7 +136,7 @@ ordered_json channel_status_json(const engine::ChannelEngine& ch) {
                                {"since", ch.alert_raised() ? ordered_json(protocol::format_rfc3339(ch.alert_since()))
                                                            : ordered_json()}}},
                     {"last_time", ch.last_time() ? ordered_json(protocol::format_rfc3339(*ch.last_time())) : ordered_json()},
-                    {"last_average", ch.last_record() ? historian_json(*ch.last_record()) : ordered_json()},
+                    {"last_average", last_average ? historian_json(*last_average) : ordered_json()},
                     {"counters",
                      {{"pairs", c.pairs},
                       {"pairs_in_fit", c.pairs_in_fit},

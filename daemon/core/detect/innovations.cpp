@@ -82,7 +82,11 @@ Status SlopeInnovation::restore(const State& s) {
 
 InnovationStream::InnovationStream(const stats::CertifiedLine& line, double sigma,
                                    const ReferenceCentre& centre)
-    : line_(line), sigma_(sigma), centre_(centre), slope_(centre.x_centre) {
+    : line_intercept_(line.intercept),
+      line_slope_(line.slope),
+      sigma_(sigma),
+      x_spread_(centre.x_spread),
+      slope_(centre.x_centre) {
   if (!std::isfinite(sigma) || sigma <= 0) throw std::invalid_argument("InnovationStream: sigma must be > 0");
   if (!std::isfinite(centre.x_spread) || centre.x_spread <= 0) {
     throw std::invalid_argument("InnovationStream: reference spread must be > 0");
@@ -91,8 +95,9 @@ InnovationStream::InnovationStream(const stats::CertifiedLine& line, double sigm
 
 Innovations InnovationStream::next(double x, double y) {
   Innovations out;
-  out.offset = offset_innovation(x, y, line_, sigma_);
-  out.d = (x - centre_.x_centre) / centre_.x_spread;
+  const stats::CertifiedLine line{.intercept = line_intercept_, .slope = line_slope_};
+  out.offset = offset_innovation(x, y, line, sigma_);
+  out.d = (x - slope_.x_centre()) / x_spread_;
   out.slope = slope_.update(x, out.offset);
   return out;
 }

@@ -82,10 +82,10 @@ void ChannelEngine::save(state::BinaryWriter& w) const {
   w.u64(pairs_since_tolerance_check_);
   w.boolean(due_alert_);
   w.boolean(tolerance_alert_);
-  for (const auto* tracker : {&due_low_, &due_high_}) {
-    w.boolean(tracker->has_value());
-    if (!*tracker) continue;
-    const auto st = (*tracker)->state();
+  for (const metrology::DueForecastTracker* tracker : {due_ ? &due_->low : nullptr, due_ ? &due_->high : nullptr}) {
+    w.boolean(tracker != nullptr);
+    if (!tracker) continue;
+    const auto st = tracker->state();
     put_moments(w, st.moments);
     w.boolean(st.latest_time_s.has_value());
     w.f64(st.latest_time_s.value_or(0));
@@ -138,7 +138,7 @@ bool ChannelEngine::load(state::BinaryReader& r) {
   pairs_since_tolerance_check_ = r.u64();
   due_alert_ = r.boolean();
   tolerance_alert_ = r.boolean();
-  for (auto* tracker : {&due_low_, &due_high_}) {
+  for (metrology::DueForecastTracker* tracker : {due_ ? &due_->low : nullptr, due_ ? &due_->high : nullptr}) {
     const bool present = r.boolean();
     if (!present) continue;
     metrology::DueForecastTracker::State st;
@@ -146,7 +146,7 @@ bool ChannelEngine::load(state::BinaryReader& r) {
     const bool has_time = r.boolean();
     const double latest = r.f64();
     if (has_time) st.latest_time_s = latest;
-    if (!r.ok() || !*tracker || !(*tracker)->restore(st)) return false;
+    if (!r.ok() || !tracker || !tracker->restore(st)) return false;
   }
   ChannelCounters& c = counters_;
   for (std::uint64_t* v : {&c.pairs, &c.pairs_in_fit, &c.readings, &c.outliers, &c.released, &c.signal_rejects,

@@ -46,8 +46,7 @@ ChannelEngine::ChannelEngine(std::shared_ptr<const config::ChannelConfig> cfg, c
                              EngineTables& tables)
     : cfg_(std::move(cfg)),
       fingerprint_(config::channel_fingerprint(*cfg_)),
-      time_(time),
-      tables_(tables),
+      max_backwards_ns_(time.max_backwards_s * ns_per_s),
       t_fit_(tables.t(cfg_->fit.confidence)),
       t_cov_(tables.t(cfg_->averaging.coverage_probability)),
       fit_(cfg_->fit.policy(), false),
@@ -82,8 +81,10 @@ bool ChannelEngine::convert(double raw, const metrology::Linearisation& lin, dou
   return true;
 }
 
+void ChannelEngine::set_time_rules(const config::TimeRules& t) { max_backwards_ns_ = t.max_backwards_s * ns_per_s; }
+
 bool ChannelEngine::clock_ok(protocol::TimeNs t) {
-  if (has_time_ && static_cast<double>(last_time_ - t) > time_.max_backwards_s * ns_per_s) return false;
+  if (has_time_ && static_cast<double>(last_time_ - t) > max_backwards_ns_) return false;
   if (!has_time_ || t > last_time_) last_time_ = t;
   has_time_ = true;
   return true;
@@ -173,7 +174,7 @@ void ChannelEngine::notify_phase(protocol::TimeNs t, EventSink& sink) {
   switch (drift_.phase()) {
     case DriftMonitor::Phase::learning:
       n.message = "learning the reference centre" + std::string(cfg_->sensor.noise_sd ? "" : " and the sensor noise") +
-                  " for the " + d.kind + " detector";
+                  " for the " + std::string(d.kind) + " detector";
       break;
     case DriftMonitor::Phase::monitoring:
       if (d.kind == "interval") {
@@ -185,7 +186,7 @@ void ChannelEngine::notify_phase(protocol::TimeNs t, EventSink& sink) {
                     (d.sigma_learned ? " (learned)" : "") + ", about " + fmt("%.0f", d.arl1_offset_pairs) +
                     " pairs to detect the design change";
       } else {
-        n.message = "monitoring with " + d.kind + ": designed ARL0 " + fmt("%.3g", d.arl0_pairs) +
+        n.message = "monitoring with " + std::string(d.kind) + ": designed ARL0 " + fmt("%.3g", d.arl0_pairs) +
                     " pairs; expected pairs to detect the design offset change " + fmt("%.3g", d.arl1_offset_pairs) +
                     ", slope change " + fmt("%.3g", d.arl1_slope_pairs) + "; sigma " + fmt("%.4g", d.sigma) +
                     (d.sigma_learned ? " (learned)" : "") + ", reference centre " + fmt("%.5g", d.centre.x_centre);
@@ -253,10 +254,25 @@ CalibrationSnapshot ChannelEngine::calibration() const {
   return c;
 }
 
-void ChannelEngine::emit_historian(const Block& b, EventSink& sink) {
-  HistorianRecord r;
+// The texts of a record that name its channel, from the configuration.
+void ChannelEngine::name_record(HistorianRecord& r) const {
   r.channel = cfg_->id;
   r.units = cfg_->units;
+  r.reference_id = cfg_->reference.id;
+  r.certificate_id = cfg_->certificate.id;
+}
+
+std::optional<HistorianRecord> ChannelEngine::last_record() const {
+  if (!last_record_) return std::nullopt;
+  HistorianRecord r;
+  static_cast<HistorianValues&>(r) = *last_record_;
+  name_record(r);
+  return r;
+}
+
+void ChannelEngine::emit_historian(const Block& b, EventSink& sink) {
+  HistorianRecord r;
+  name_record(r);
   r.seq = ++historian_seq_;
   r.window_start = b.start;
   r.window_end = b.end;
@@ -264,13 +280,11 @@ void ChannelEngine::emit_historian(const Block& b, EventSink& sink) {
   r.raw_mean = b.mean_raw;
   r.indication = b.mean;
   r.calibration = calibration();
-  r.reference_id = cfg_->reference.id;
-  r.certificate_id = cfg_->certificate.id;
   r.drift_alert = alert_.raised();
   const bool enough = fit_.moments().count >= static_cast<std::uint64_t>(cfg_->min_pairs);
   correct_block(*cfg_, fit_summary(), enough, alert_.raised(), t_cov_, r);
   ++counters_.historian_records;
-  last_record_ = r;
+  last_record_ = static_cast<const HistorianValues&>(r);
   sink.on_historian(r);
 }
 
@@ -313,8 +327,10 @@ void ChannelEngine::emit_alert(Transition tr, const DriftFinding& f, protocol::T
 
 void ChannelEngine::reset(protocol::TimeNs t, EventSink& sink) {
   // As-left: the trend of the old calibration says nothing about the new one.
-  if (due_low_) due_low_->reset();
-  if (due_high_) due_high_->reset();
+  if (due_) {
+    due_->low.reset();
+    due_->high.reset();
+  }
   next_snapshot_ = 0;
   pairs_since_tolerance_check_ = 0;
   due_alert_ = tolerance_alert_ = false;
@@ -352,8 +368,10 @@ void ChannelEngine::reset(protocol::TimeNs t, EventSink& sink) {
 namespace rigcal::engine {
 
 void ChannelEngine::restart_fresh() {
-  if (due_low_) due_low_->reset();
-  if (due_high_) due_high_->reset();
+  if (due_) {
+    due_->low.reset();
+    due_->high.reset();
+  }
   next_snapshot_ = 0;
   pairs_since_tolerance_check_ = 0;
   due_alert_ = tolerance_alert_ = false;

@@ -42,10 +42,7 @@ void ChannelEngine::init_tolerance() {
   o.min_snapshots = static_cast<std::uint64_t>(c.forecast.min_snapshots);
   o.u_common = reference_u_.u;
   auto lo = metrology::DueForecastTracker::create(o), hi = metrology::DueForecastTracker::create(o);
-  if (lo && hi) {
-    due_low_.emplace(std::move(lo.value()));
-    due_high_.emplace(std::move(hi.value()));
-  }
+  if (lo && hi) due_ = std::make_unique<DueTrackers>(DueTrackers{std::move(lo.value()), std::move(hi.value())});
 }
 
 Result<metrology::ToleranceVerdict> ChannelEngine::tolerance_verdict() const { return evaluate_tolerance(true); }
@@ -66,14 +63,14 @@ Result<metrology::ToleranceVerdict> ChannelEngine::evaluate_tolerance(bool expla
 }
 
 std::optional<metrology::DueForecast> ChannelEngine::due_forecast_low() const {
-  if (!due_low_) return std::nullopt;
-  auto f = due_low_->forecast(metrology::mpe_at(mpe_, range_, range_.lo), t_fit_);
+  if (!due_) return std::nullopt;
+  auto f = due_->low.forecast(metrology::mpe_at(mpe_, range_, range_.lo), t_fit_);
   return f ? std::optional(f.value()) : std::nullopt;
 }
 
 std::optional<metrology::DueForecast> ChannelEngine::due_forecast_high() const {
-  if (!due_high_) return std::nullopt;
-  auto f = due_high_->forecast(metrology::mpe_at(mpe_, range_, range_.hi), t_fit_);
+  if (!due_) return std::nullopt;
+  auto f = due_->high.forecast(metrology::mpe_at(mpe_, range_, range_.hi), t_fit_);
   return f ? std::optional(f.value()) : std::nullopt;
 }
 
@@ -91,7 +88,7 @@ void ChannelEngine::after_pair_checks(protocol::TimeNs t, EventSink& sink) {
     pairs_since_tolerance_check_ = 0;
     check_tolerance(t, sink);
   }
-  if (!due_low_) return;
+  if (!due_) return;
   if (next_snapshot_ == 0) next_snapshot_ = t;  // the first snapshot as soon as the fit qualifies
   if (t < next_snapshot_) return;
   next_snapshot_ = t + static_cast<protocol::TimeNs>(cfg_->forecast.snapshot_interval_s * ns_per_s);
@@ -126,9 +123,9 @@ void ChannelEngine::take_snapshot(protocol::TimeNs t, const stats::LineFit& fit,
   const double t_s = static_cast<double>(t) / ns_per_s;
   const stats::CertifiedLine cert = certified_line(*cfg_);
   const metrology::ReferenceStandardUncertainty no_ref{};  // the reference's share is the trackers' u_common
-  for (auto [x, tracker] : {std::pair{range_.lo, &due_low_}, std::pair{range_.hi, &due_high_}}) {
+  for (auto [x, tracker] : {std::pair{range_.lo, &due_->low}, std::pair{range_.hi, &due_->high}}) {
     auto e = metrology::sensor_error_at(fit, cert, no_ref, x, t_fit_);
-    if (e && e->u_fit > 0) (*tracker)->add(t_s, e->error, e->u_fit);
+    if (e && e->u_fit > 0) tracker->add(t_s, e->error, e->u_fit);
   }
   const auto due = due_by();
   const double warn_ns = cfg_->forecast.warn_before_days * 86400.0 * ns_per_s;
@@ -146,7 +143,7 @@ void ChannelEngine::take_snapshot(protocol::TimeNs t, const stats::LineFit& fit,
     e.message = cfg_->id + ": calibration due " +
                 (due ? "by " + protocol::format_rfc3339(*due, 0) : std::string("now (the trend is already outside)")) +
                 ": the drift trend of its error is forecast to reach the tolerance (earliest crossing consistent with " +
-                std::to_string(due_low_->snapshots()) +
+                std::to_string(due_->low.snapshots()) +
                 " snapshots, assuming linear ageing). Plan a calibration. Decision support only.";
   } else {
     e.message = cfg_->id + ": calibration no longer forecast as due within " + num("%g", cfg_->forecast.warn_before_days) +

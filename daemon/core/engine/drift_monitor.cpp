@@ -34,9 +34,12 @@ std::size_t learn_pairs(const config::ChannelConfig& c) { return static_cast<std
 
 DriftMonitor::DriftMonitor(const config::ChannelConfig& cfg, EngineTables& tables)
     : cfg_(cfg), tables_(tables), t_(tables.t(cfg.fit.confidence)) {
-  line_ = stats::CertifiedLine{cfg.certificate.intercept, cfg.certificate.slope, cfg.certificate.u_intercept,
-                               cfg.certificate.u_slope, cfg.certificate.cov};
   design_.kind = kind_name(cfg.detector.kind);
+}
+
+stats::CertifiedLine DriftMonitor::certified_line() const {
+  const auto& c = cfg_.certificate;
+  return {c.intercept, c.slope, c.u_intercept, c.u_slope, c.cov};
 }
 
 const char* DriftMonitor::phase_name() const {
@@ -52,18 +55,12 @@ const char* DriftMonitor::phase_name() const {
 void DriftMonitor::reset() {
   phase_ = Phase::waiting;
   unavailable_reason_.clear();
-  learn_x_.clear();
-  learn_e_.clear();
-  const std::string kind = design_.kind;
+  learning_.clear();
   design_ = DriftDesign{};
-  design_.kind = kind;
+  design_.kind = kind_name(cfg_.detector.kind);
   latched_ = false;
   innovations_.reset();
-  cusum_offset_.reset();
-  cusum_slope_.reset();
-  ewma_offset_.reset();
-  ewma_slope_.reset();
-  mixture_.reset();
+  detectors_ = std::monostate{};
 }
 
 DriftFinding DriftMonitor::update(double x, double y, const Result<stats::LineFit>& fit) {
@@ -75,9 +72,11 @@ DriftFinding DriftMonitor::update(double x, double y, const Result<stats::LineFi
         phase_ = Phase::learning;
         phase_changed_ = true;
       }
-      learn_x_.push_back(x);
-      learn_e_.push_back(y - (line_.intercept + line_.slope * x));
-      if (learn_x_.size() >= learn_pairs(cfg_)) finish_learning(fit);
+      {
+        const stats::CertifiedLine line = certified_line();
+        learning_.push_back({x, y - (line.intercept + line.slope * x)});
+      }
+      if (learning_.size() >= learn_pairs(cfg_)) finish_learning(fit);
       return {};
     case Phase::unavailable:
       return {};
@@ -94,7 +93,7 @@ DriftFinding DriftMonitor::interval_rule(const Result<stats::LineFit>& fit) {
     phase_ = Phase::monitoring;
     phase_changed_ = true;
   }
-  const auto v = stats::judge_against_certificate(fit.value(), line_, t_, cfg_.fit.widen_by_certificate);
+  const auto v = stats::judge_against_certificate(fit.value(), certified_line(), t_, cfg_.fit.widen_by_certificate);
   DriftFinding f;
   f.evaluated = true;
   f.present = !(v.joint_consistent && v.slope_consistent && v.intercept_consistent);
@@ -130,10 +129,7 @@ void DriftMonitor::finish_learning(const Result<stats::LineFit>&) {
     phase_ = Phase::unavailable;
     phase_changed_ = true;
     unavailable_reason_ = std::move(why);
-    learn_x_.clear();
-    learn_x_.shrink_to_fit();
-    learn_e_.clear();
-    learn_e_.shrink_to_fit();
+    drop_learning_pairs();
   };
   if (cfg_.range_low && cfg_.range_high) {
     const double lo = *cfg_.range_low, hi = *cfg_.range_high;
@@ -141,7 +137,9 @@ void DriftMonitor::finish_learning(const Result<stats::LineFit>&) {
     design_.centre.x_spread = (hi - lo) / std::sqrt(12.0);
     design_.centre.mean_abs_deviation = 0.25 * (hi - lo);
   } else {
-    auto centre = detect::reference_centre(learn_x_);
+    std::vector<double> xs(learning_.size());
+    std::transform(learning_.begin(), learning_.end(), xs.begin(), [](const LearnPair& p) { return p.x; });
+    auto centre = detect::reference_centre(xs);
     if (!centre)
       return fail("cannot learn the reference centre: " + centre.error().message +
                   " (configure the channel's range, or raise detector.learn_pairs to span several set points)");
@@ -151,22 +149,25 @@ void DriftMonitor::finish_learning(const Result<stats::LineFit>&) {
     design_.sigma = *cfg_.sensor.noise_sd;
   } else {
     double mean = 0, m2 = 0;
-    for (std::size_t i = 0; i < learn_e_.size(); ++i) {
-      const double d = learn_e_[i] - mean;
+    for (std::size_t i = 0; i < learning_.size(); ++i) {
+      const double d = learning_[i].e - mean;
       mean += d / static_cast<double>(i + 1);
-      m2 += d * (learn_e_[i] - mean);
+      m2 += d * (learning_[i].e - mean);
     }
     const double floor = cfg_.sensor.resolution / std::sqrt(12.0);
-    design_.sigma = std::max(learn_e_.size() > 1 ? std::sqrt(m2 / static_cast<double>(learn_e_.size() - 1)) : 0.0, floor);
+    const std::size_t n = learning_.size();
+    design_.sigma = std::max(n > 1 ? std::sqrt(m2 / static_cast<double>(n - 1)) : 0.0, floor);
     design_.sigma_learned = true;
     if (!(design_.sigma > 0))
       return fail("cannot learn the sensor noise: the readings do not scatter; configure sensor.noise_sd");
   }
-  learn_x_.clear();
-  learn_x_.shrink_to_fit();
-  learn_e_.clear();
-  learn_e_.shrink_to_fit();
+  drop_learning_pairs();
   start_detectors();
+}
+
+void DriftMonitor::drop_learning_pairs() {
+  learning_.clear();
+  learning_.shrink_to_fit();
 }
 
 void DriftMonitor::start_detectors() {
@@ -182,7 +183,7 @@ void DriftMonitor::start_detectors() {
     phase_changed_ = true;
     unavailable_reason_ = std::move(why);
   };
-  innovations_.emplace(line_, sigma, design_.centre);
+  innovations_.emplace(certified_line(), sigma, design_.centre);
   // Two detectors in parallel: each is designed for twice the channel's ARL0, so that together they
   // give one false alert per `arl0` pairs. The slope detector sees about one innovation per two pairs,
   // so its target in innovations is `arl0` (= 2 arl0 pairs).
@@ -198,8 +199,7 @@ void DriftMonitor::start_detectors() {
       design_.h_slope = sl->h;
       design_.arl1_offset_pairs = off->arl1;
       design_.arl1_slope_pairs = 2 * sl->arl1;
-      cusum_offset_.emplace(off->k, off->h, 2 * off->h);
-      cusum_slope_.emplace(sl->k, sl->h, 2 * sl->h);
+      detectors_ = CusumPair{detect::Cusum(off->k, off->h, 2 * off->h), detect::Cusum(sl->k, sl->h, 2 * sl->h)};
       break;
     }
     case config::DetectorKind::ewma: {
@@ -213,8 +213,7 @@ void DriftMonitor::start_detectors() {
       design_.L_slope = sl->L;
       design_.arl1_offset_pairs = off->arl1;
       design_.arl1_slope_pairs = 2 * sl->arl1;
-      ewma_offset_.emplace(off->lambda, off->L);
-      ewma_slope_.emplace(sl->lambda, sl->L);
+      detectors_ = EwmaPair{detect::Ewma(off->lambda, off->L), detect::Ewma(sl->lambda, sl->L)};
       break;
     }
     case config::DetectorKind::anytime: {
@@ -225,7 +224,7 @@ void DriftMonitor::start_detectors() {
       design_.alpha = cfg_.detector.alpha;
       design_.arl0_pairs = 0;  // not an ARL design: P(any false alert) <= alpha
       design_.arl1_offset_pairs = d->detection_pairs;
-      mixture_.emplace(cfg_.detector.alpha, d->rho);
+      detectors_.emplace<detect::NormalMixtureTest>(cfg_.detector.alpha, d->rho);
       break;
     }
     case config::DetectorKind::interval:
@@ -254,37 +253,36 @@ DriftFinding DriftMonitor::sequential(double x, double y) {
     f.statistic = use_slope ? sl_stat : off_stat;
     f.threshold = use_slope ? sl_thr : off_thr;
   };
-  if (cusum_offset_) {
-    cusum_offset_->update(in.offset);
-    if (in.slope) cusum_slope_->update(*in.slope);
-    pick(cusum_offset_->in_alarm(), cusum_slope_->in_alarm(),
-         std::max(cusum_offset_->upper(), cusum_offset_->lower()), cusum_offset_->h(),
-         std::max(cusum_slope_->upper(), cusum_slope_->lower()), cusum_slope_->h());
-  } else if (ewma_offset_) {
-    ewma_offset_->update(in.offset);
-    if (in.slope) ewma_slope_->update(*in.slope);
-    pick(ewma_offset_->in_alarm(), ewma_slope_->in_alarm(), std::abs(ewma_offset_->statistic()),
-         ewma_offset_->limit(), std::abs(ewma_slope_->statistic()), ewma_slope_->limit());
-  } else if (mixture_) {
-    mixture_->update(in.offset, in.d);
-    f.present = mixture_->rejected();
+  if (auto* c = std::get_if<CusumPair>(&detectors_)) {
+    c->offset.update(in.offset);
+    if (in.slope) c->slope.update(*in.slope);
+    pick(c->offset.in_alarm(), c->slope.in_alarm(), std::max(c->offset.upper(), c->offset.lower()), c->offset.h(),
+         std::max(c->slope.upper(), c->slope.lower()), c->slope.h());
+  } else if (auto* e = std::get_if<EwmaPair>(&detectors_)) {
+    e->offset.update(in.offset);
+    if (in.slope) e->slope.update(*in.slope);
+    pick(e->offset.in_alarm(), e->slope.in_alarm(), std::abs(e->offset.statistic()), e->offset.limit(),
+         std::abs(e->slope.statistic()), e->slope.limit());
+  } else if (auto* m = std::get_if<detect::NormalMixtureTest>(&detectors_)) {
+    m->update(in.offset, in.d);
+    f.present = m->rejected();
     f.test = "line";
-    f.statistic = mixture_->log_martingale();
-    f.threshold = mixture_->log_threshold();
+    f.statistic = m->log_martingale();
+    f.threshold = m->log_threshold();
   }
   return f;
 }
 
 double DriftMonitor::statistic_offset() const {
-  if (cusum_offset_) return std::max(cusum_offset_->upper(), cusum_offset_->lower());
-  if (ewma_offset_) return ewma_offset_->statistic();
-  if (mixture_) return mixture_->log_martingale();
+  if (const auto* c = std::get_if<CusumPair>(&detectors_)) return std::max(c->offset.upper(), c->offset.lower());
+  if (const auto* e = std::get_if<EwmaPair>(&detectors_)) return e->offset.statistic();
+  if (const auto* m = std::get_if<detect::NormalMixtureTest>(&detectors_)) return m->log_martingale();
   return 0;
 }
 
 double DriftMonitor::statistic_slope() const {
-  if (cusum_slope_) return std::max(cusum_slope_->upper(), cusum_slope_->lower());
-  if (ewma_slope_) return ewma_slope_->statistic();
+  if (const auto* c = std::get_if<CusumPair>(&detectors_)) return std::max(c->slope.upper(), c->slope.lower());
+  if (const auto* e = std::get_if<EwmaPair>(&detectors_)) return e->slope.statistic();
   return 0;
 }
 
@@ -293,10 +291,10 @@ double DriftMonitor::statistic_slope() const {
 void DriftMonitor::save(state::BinaryWriter& w) const {
   w.u8(static_cast<std::uint8_t>(phase_));
   w.text(unavailable_reason_);
-  w.u64(learn_x_.size());
-  for (std::size_t i = 0; i < learn_x_.size(); ++i) {
-    w.f64(learn_x_[i]);
-    w.f64(learn_e_[i]);
+  w.u64(learning_.size());
+  for (const LearnPair& p : learning_) {
+    w.f64(p.x);
+    w.f64(p.e);
   }
   w.f64(design_.sigma);
   w.boolean(design_.sigma_learned);
@@ -314,15 +312,18 @@ void DriftMonitor::save(state::BinaryWriter& w) const {
     w.f64(s.held[i].x);
     w.f64(s.held[i].z);
   }
-  auto put_cusum = [&w](const std::optional<detect::Cusum>& c) {
-    w.f64(c ? c->state().upper : 0);
-    w.f64(c ? c->state().lower : 0);
-  };
-  put_cusum(cusum_offset_);
-  put_cusum(cusum_slope_);
-  w.f64(ewma_offset_ ? ewma_offset_->state().w : 0);
-  w.f64(ewma_slope_ ? ewma_slope_->state().w : 0);
-  const auto m = mixture_ ? mixture_->state() : detect::NormalMixtureTest::State{};
+  // Every kind's state is written, zeros for the kinds the channel does not run (the layout is fixed).
+  const auto* cusum = std::get_if<CusumPair>(&detectors_);
+  for (const auto& c : {cusum ? cusum->offset.state() : detect::Cusum::State{},
+                        cusum ? cusum->slope.state() : detect::Cusum::State{}}) {
+    w.f64(c.upper);
+    w.f64(c.lower);
+  }
+  const auto* ewma = std::get_if<EwmaPair>(&detectors_);
+  w.f64(ewma ? ewma->offset.state().w : 0);
+  w.f64(ewma ? ewma->slope.state().w : 0);
+  const auto* mixture = std::get_if<detect::NormalMixtureTest>(&detectors_);
+  const auto m = mixture ? mixture->state() : detect::NormalMixtureTest::State{};
   w.u64(m.n);
   w.f64(m.mean_d);
   w.f64(m.m2_d);
@@ -339,8 +340,10 @@ bool DriftMonitor::load(state::BinaryReader& r) {
   unavailable_reason_ = r.text(4096);
   const std::uint64_t n = r.count(16);
   for (std::uint64_t i = 0; i < n; ++i) {
-    learn_x_.push_back(r.f64());
-    learn_e_.push_back(r.f64());
+    LearnPair p;
+    p.x = r.f64();
+    p.e = r.f64();
+    learning_.push_back(p);
   }
   design_.sigma = r.f64();
   design_.sigma_learned = r.boolean();
@@ -372,9 +375,11 @@ bool DriftMonitor::load(state::BinaryReader& r) {
   start_detectors();  // rebuilds the designed detectors, then their states are restored
   if (phase_ != Phase::monitoring) return true;
   if (!innovations_->restore(s)) return false;
-  if (cusum_offset_ && (!cusum_offset_->restore(co) || !cusum_slope_->restore(cs))) return false;
-  if (ewma_offset_ && (!ewma_offset_->restore(eo) || !ewma_slope_->restore(es))) return false;
-  if (mixture_ && !mixture_->restore(m)) return false;
+  if (auto* c = std::get_if<CusumPair>(&detectors_); c && (!c->offset.restore(co) || !c->slope.restore(cs)))
+    return false;
+  if (auto* e = std::get_if<EwmaPair>(&detectors_); e && (!e->offset.restore(eo) || !e->slope.restore(es)))
+    return false;
+  if (auto* mt = std::get_if<detect::NormalMixtureTest>(&detectors_); mt && !mt->restore(m)) return false;
   latched_ = latched;
   phase_changed_ = false;
   return true;

@@ -4,6 +4,7 @@
 #include <cstdio>
 
 #include "number_text.hpp"
+#include "rigcal/stats/line_fit.hpp"
 
 namespace rigcal::metrology {
 
@@ -68,7 +69,7 @@ std::string due_reason(const DueForecast& f, const ToleranceCrossing& c, double 
 }  // namespace
 
 DueForecastTracker::DueForecastTracker(const DueForecastOptions& options)
-    : options_(options), trend_(stats::MemoryPolicy::cumulative(), /*weighted=*/true) {}
+    : options_(options) {}
 
 Result<DueForecastTracker> DueForecastTracker::create(const DueForecastOptions& options) {
   if (options.min_snapshots < 3) {
@@ -104,7 +105,7 @@ Status DueForecastTracker::add(double time_s, double error, double u_error) {
 
 Status DueForecastTracker::restore(const State& s) {
   if (s.latest_time_s && !std::isfinite(*s.latest_time_s)) return Error{"forecast state: latest time not finite"};
-  if (auto st = trend_.restore(s.moments, {}, {}, {}, 0); !st) return st;
+  trend_ = stats::LineAccumulator::from_moments(s.moments);
   latest_time_s_ = s.latest_time_s;
   return ok_status();
 }
@@ -127,7 +128,7 @@ Result<DueForecast> DueForecastTracker::forecast(double mpe, const stats::TwoSid
                std::to_string(options_.min_snapshots);
     return f;
   }
-  auto fit = trend_.summary(stats::Model::line);
+  auto fit = stats::summarize(trend_.moments(), stats::Model::line);
   if (!fit) {
     f.reason = "no drift trend: " + fit.error().message;
     return f;

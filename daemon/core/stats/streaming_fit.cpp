@@ -3,11 +3,21 @@
 namespace rigcal::stats {
 
 StreamingLineFit::StreamingLineFit(MemoryPolicy policy, bool weighted) : policy_(policy), weighted_(weighted) {
-  if (policy_.kind == MemoryPolicy::Kind::window) {
-    x_.resize(policy_.window_pairs);
-    y_.resize(policy_.window_pairs);
-    if (weighted_) w_.resize(policy_.window_pairs);
-  }
+  if (policy_.kind == MemoryPolicy::Kind::window) ring_.resize(policy_.window_pairs * stride());
+}
+
+void StreamingLineFit::put(std::size_t slot, double x, double y, double w) {
+  double* p = &ring_[slot * stride()];
+  p[0] = x;
+  p[1] = y;
+  if (weighted_) p[2] = w;
+}
+
+void StreamingLineFit::get(std::size_t slot, double& x, double& y, double& w) const {
+  const double* p = &ring_[slot * stride()];
+  x = p[0];
+  y = p[1];
+  w = weighted_ ? p[2] : 1.0;
 }
 
 void StreamingLineFit::add(double x, double y, double w) {
@@ -22,12 +32,12 @@ void StreamingLineFit::add(double x, double y, double w) {
     case MemoryPolicy::Kind::window:
       break;
   }
-  const std::size_t cap = x_.size();
+  const std::size_t cap = capacity();
   if (size_ == cap) {
-    acc_.remove(x_[head_], y_[head_], weighted_ ? w_[head_] : 1.0);
-    x_[head_] = x;
-    y_[head_] = y;
-    if (weighted_) w_[head_] = w;
+    double old_x, old_y, old_w;
+    get(head_, old_x, old_y, old_w);
+    acc_.remove(old_x, old_y, old_w);
+    put(head_, x, y, w);
     head_ = head_ + 1 == cap ? 0 : head_ + 1;
     acc_.add(x, y, w);
     if (++removals_ >= rebuild_every_windows * cap) rebuild();
@@ -35,18 +45,19 @@ void StreamingLineFit::add(double x, double y, double w) {
   }
   std::size_t tail = head_ + size_;
   if (tail >= cap) tail -= cap;
-  x_[tail] = x;
-  y_[tail] = y;
-  if (weighted_) w_[tail] = w;
+  put(tail, x, y, w);
   ++size_;
   acc_.add(x, y, w);
 }
 
 void StreamingLineFit::rebuild() {
   acc_.reset();
-  const std::size_t cap = x_.size();
-  for (std::size_t i = 0, j = head_; i < size_; ++i, j = (j + 1 == cap ? 0 : j + 1))
-    acc_.add(x_[j], y_[j], weighted_ ? w_[j] : 1.0);
+  const std::size_t cap = capacity();
+  double x, y, w;
+  for (std::size_t i = 0, j = head_; i < size_; ++i, j = (j + 1 == cap ? 0 : j + 1)) {
+    get(j, x, y, w);
+    acc_.add(x, y, w);
+  }
   removals_ = 0;
 }
 
@@ -58,25 +69,19 @@ void StreamingLineFit::reset() {
 
 void StreamingLineFit::window_pair(std::size_t i, double& x, double& y, double& w) const {
   std::size_t j = head_ + i;
-  if (j >= x_.size()) j -= x_.size();
-  x = x_[j];
-  y = y_[j];
-  w = weighted_ ? w_[j] : 1.0;
+  if (j >= capacity()) j -= capacity();
+  get(j, x, y, w);
 }
 
 Status StreamingLineFit::restore(const LineMoments& m, std::span<const double> xs, std::span<const double> ys,
                                  std::span<const double> ws, std::uint64_t removals) {
   if (xs.size() != ys.size() || (weighted_ && ws.size() != xs.size()) || (!weighted_ && !ws.empty()))
     return Error{"window arrays of unequal length"};
-  if (xs.size() > x_.size()) return Error{"more window pairs than the window holds"};
+  if (xs.size() > capacity()) return Error{"more window pairs than the window holds"};
   if (policy_.kind == MemoryPolicy::Kind::window && m.count != xs.size())
     return Error{"window pair count disagrees with the fit state"};
   reset();
-  for (std::size_t i = 0; i < xs.size(); ++i) {
-    x_[i] = xs[i];
-    y_[i] = ys[i];
-    if (weighted_) w_[i] = ws[i];
-  }
+  for (std::size_t i = 0; i < xs.size(); ++i) put(i, xs[i], ys[i], weighted_ ? ws[i] : 1.0);
   size_ = xs.size();
   removals_ = removals;
   acc_ = LineAccumulator::from_moments(m);

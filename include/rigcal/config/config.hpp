@@ -123,6 +123,8 @@ struct ControlConfig {
 };
 
 // --- per channel ---
+// One copy of each channel's configuration lives as long as the channel: the small fields of a
+// struct are kept next to each other so that the struct loses little to padding.
 
 struct ReferenceStandard {
   std::string id;
@@ -164,8 +166,8 @@ struct FitConfig {
   double forgetting_factor = 0.999;
   stats::Model model = stats::Model::line;
   bool errors_in_variables = false;
-  double confidence = 0.95;
   bool widen_by_certificate = true;
+  double confidence = 0.95;
   std::optional<double> min_reference_spread;  // RMS of the fit's reference values; default: span/20
   stats::MemoryPolicy policy() const {
     switch (memory) {
@@ -188,13 +190,13 @@ enum class DetectorKind { interval, cusum, ewma, anytime };
 
 struct DetectorConfig {
   DetectorKind kind = DetectorKind::cusum;
+  int learn_pairs = 0;                      // 0: min_pairs
   double target_arl0_pairs = 0;             // 0: use the false-alert interval form below
   double false_alert_interval_days = 365;
   double pair_rate_hz = 1;
   double min_slope_change = 0.005;          // fraction of the certified slope
   std::optional<double> min_offset_change;  // channel units; default: a quarter of the tolerance at mid-range
   double alpha = 0.001;                     // anytime-valid test: probability of any false alert, ever
-  int learn_pairs = 0;                      // 0: min_pairs
   double arl0_pairs() const {
     return target_arl0_pairs > 0 ? target_arl0_pairs : false_alert_interval_days * 86400.0 * pair_rate_hz;
   }
@@ -209,15 +211,15 @@ struct AlertPolicy {
 
 struct AveragingConfig {
   int block_readings = 0;  // close a block after this many readings (0: use time buckets)
-  double bucket_s = 60;    // fixed UTC-aligned buckets when block_readings is 0
   bool include_pair_readings = false;
+  double bucket_s = 60;    // fixed UTC-aligned buckets when block_readings is 0
   double coverage_probability = 0.95;
 };
 
 struct ForecastConfig {
   bool enabled = true;
-  double snapshot_interval_s = 86400;
   int min_snapshots = 5;
+  double snapshot_interval_s = 86400;
   double warn_before_days = 30;
 };
 
@@ -230,10 +232,10 @@ struct ChannelConfig {
   SensorSpec sensor;
   std::optional<double> range_low, range_high;  // reference values over which the sensor is used
   Tolerance tolerance;
-  DecisionRule decision_rule = DecisionRule::guarded;
   std::optional<double> guard_band;  // default: the expanded uncertainty of the error
   FitConfig fit;
   int min_pairs = 30;
+  DecisionRule decision_rule = DecisionRule::guarded;
   ScreeningConfig screening;
   DetectorConfig detector;
   AlertPolicy alert;

@@ -119,9 +119,12 @@ class InnovationStream {
   Status restore(const SlopeInnovation::State& s) { return slope_.restore(s); }
 
  private:
-  stats::CertifiedLine line_;
+  // Only what next() reads, one stream per channel: of the line its intercept and slope (all that
+  // offset_innovation uses), of the centre its spread (x_c is the slope pairing's).
+  double line_intercept_;
+  double line_slope_;
   double sigma_;
-  ReferenceCentre centre_;
+  double x_spread_;
   SlopeInnovation slope_;
 };
 

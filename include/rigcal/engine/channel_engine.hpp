@@ -73,7 +73,7 @@ class ChannelEngine {
   protocol::TimeNs alert_since() const { return alert_.state().since; }
   const ChannelCounters& counters() const { return counters_; }
   std::optional<protocol::TimeNs> last_time() const { return has_time_ ? std::optional(last_time_) : std::nullopt; }
-  const std::optional<HistorianRecord>& last_record() const { return last_record_; }
+  std::optional<HistorianRecord> last_record() const;
   const OutlierScreen& screen() const { return screen_; }
   std::uint64_t calibration_version() const { return version_; }
   const stats::TwoSidedT& fit_t() const { return t_fit_; }
@@ -87,7 +87,7 @@ class ChannelEngine {
   std::optional<metrology::DueForecast> due_forecast_high() const;
   std::optional<protocol::TimeNs> due_by() const;
   bool due_alert_raised() const { return due_alert_; }
-  void set_time_rules(const config::TimeRules& t) { time_ = t; }
+  void set_time_rules(const config::TimeRules& t);
   // A channel whose configuration changed starts over with the next calibration version.
   void set_calibration_version(std::uint64_t v) { version_ = v; }
 
@@ -101,6 +101,7 @@ class ChannelEngine {
   void accept_pair(const HeldPair& p, EventSink& sink);
   void add_reading(protocol::TimeNs t, double value, double raw, EventSink& sink);
   void emit_historian(const Block& b, EventSink& sink);
+  void name_record(HistorianRecord& r) const;
   void notify_phase(protocol::TimeNs t, EventSink& sink);
   void init_tolerance();
   Result<metrology::ToleranceVerdict> evaluate_tolerance(bool explain) const;
@@ -115,8 +116,7 @@ class ChannelEngine {
 
   std::shared_ptr<const config::ChannelConfig> cfg_;
   std::uint64_t fingerprint_;
-  config::TimeRules time_;
-  EngineTables& tables_;
+  double max_backwards_ns_;  // the clock rule, the only time rule a channel applies
   const stats::TwoSidedT& t_fit_;
   const stats::TwoSidedT& t_cov_;
   stats::StreamingLineFit fit_;
@@ -127,22 +127,28 @@ class ChannelEngine {
   DriftFinding last_finding_;
   ChannelCounters counters_;
   protocol::TimeNs last_time_ = 0;
-  bool has_time_ = false;
   std::uint64_t version_ = 1;
   std::uint64_t historian_seq_ = 0;
   // Quiet-channel rule for averaging: the first tick without a reading since the last one; the open
   // block closes once the ticks have run one bucket length past it.
   protocol::TimeNs quiet_since_ = 0;
-  bool reading_since_tick_ = false;
-  std::optional<HistorianRecord> last_record_;
+  std::optional<HistorianValues> last_record_;
   // Tolerance and calibration-due forecast (only with a tolerance and a range).
-  bool has_tolerance_ = false;
   metrology::MaximumPermissibleError mpe_;
   metrology::SensorRange range_;
   metrology::ReferenceStandardUncertainty reference_u_;
-  std::optional<metrology::DueForecastTracker> due_low_, due_high_;
+  // The trackers at the low and high end of the range, on the heap and only for a channel that
+  // forecasts (tolerance, range and forecast.enabled): two trackers inline would cost every channel.
+  struct DueTrackers {
+    metrology::DueForecastTracker low, high;
+  };
+  std::unique_ptr<DueTrackers> due_;
   protocol::TimeNs next_snapshot_ = 0;
   std::uint64_t pairs_since_tolerance_check_ = 0;
+  // The flags together: each alone between 8-byte members would take 8 bytes, in every channel.
+  bool has_time_ = false;
+  bool reading_since_tick_ = false;
+  bool has_tolerance_ = false;
   bool due_alert_ = false;
   bool tolerance_alert_ = false;
 };

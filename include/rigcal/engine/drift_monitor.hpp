@@ -15,6 +15,8 @@
 // Designs come from EngineTables and are shared between channels.
 #include <optional>
 #include <string>
+#include <string_view>
+#include <variant>
 #include <vector>
 
 #include "rigcal/config/config.hpp"
@@ -38,7 +40,7 @@ struct DriftFinding {
 
 // What the detector was designed for, for status and the report.
 struct DriftDesign {
-  std::string kind;        // interval, cusum, ewma, anytime
+  std::string_view kind;   // interval, cusum, ewma, anytime (a fixed text)
   double sigma = 0;        // noise SD used to standardise innovations
   bool sigma_learned = false;
   detect::ReferenceCentre centre;
@@ -80,27 +82,41 @@ class DriftMonitor {
   bool load(state::BinaryReader& r);
 
  private:
+  // The running detectors of one sequential kind. A channel holds only its configured kind's, not
+  // every kind's: they are per-channel state, and with many channels the unused ones add up.
+  struct CusumPair {
+    detect::Cusum offset, slope;
+  };
+  struct EwmaPair {
+    detect::Ewma offset, slope;
+  };
+  using Detectors = std::variant<std::monostate, CusumPair, EwmaPair, detect::NormalMixtureTest>;
+
+  // A learning pair: the reference value and its deviation y - (b0* + b1* x) from the certified line.
+  struct LearnPair {
+    double x = 0, e = 0;
+  };
+
+  // Gathered from the configuration when needed rather than copied into every channel.
+  stats::CertifiedLine certified_line() const;
   DriftFinding interval_rule(const Result<stats::LineFit>& fit);
   DriftFinding sequential(double x, double y);
   void finish_learning(const Result<stats::LineFit>& fit);
   void start_detectors();
+  void drop_learning_pairs();
 
   const config::ChannelConfig& cfg_;
   EngineTables& tables_;
   const stats::TwoSidedT& t_;
-  stats::CertifiedLine line_;
   static constexpr double deadband_fraction = 0.5;
-  bool latched_ = false;  // a sequential finding stays present until below the deadband
   Phase phase_ = Phase::waiting;
+  bool latched_ = false;  // a sequential finding stays present until below the deadband
   bool phase_changed_ = false;
   std::string unavailable_reason_;
-  std::vector<double> learn_x_;  // reference values of the learning pairs
-  std::vector<double> learn_e_;  // their deviations y - (b0* + b1* x) from the certified line
+  std::vector<LearnPair> learning_;
   DriftDesign design_;
   std::optional<detect::InnovationStream> innovations_;
-  std::optional<detect::Cusum> cusum_offset_, cusum_slope_;
-  std::optional<detect::Ewma> ewma_offset_, ewma_slope_;
-  std::optional<detect::NormalMixtureTest> mixture_;
+  Detectors detectors_;
 };
 
 }  // namespace rigcal::engine

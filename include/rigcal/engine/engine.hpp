@@ -34,16 +34,14 @@ class Engine {
   EngineTables& tables() { return tables_; }
 
  private:
-  struct StringHash {
-    using is_transparent = void;
-    std::size_t operator()(std::string_view s) const { return std::hash<std::string_view>{}(s); }
-  };
   void index();
 
   EngineTables tables_;
   config::TimeRules time_;
   std::vector<std::unique_ptr<ChannelEngine>> channels_;
-  std::unordered_map<std::string, std::size_t, StringHash, std::equal_to<>> by_id_;
+  // The keys view the ids in the channels' own configurations, so that no id is stored twice;
+  // index() rebuilds the map whenever channels_ changes.
+  std::unordered_map<std::string_view, std::size_t> by_id_;
 };
 
 }  // namespace rigcal::engine

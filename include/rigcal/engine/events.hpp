@@ -53,9 +53,9 @@ std::string_view quality_name(Quality q);
 // OPC UA StatusCode severity (IEC 62541-4): Good 0x00000000, Uncertain 0x40000000, Bad 0x80000000.
 std::uint32_t opc_ua_severity(Quality q);
 
-struct HistorianRecord {
-  std::string_view channel;
-  std::string_view units;
+// A historian record but for the texts that name its channel (they are the channel's configuration):
+// the form in which a channel keeps its latest record.
+struct HistorianValues {
   std::uint64_t seq = 0;  // per channel, increases by one per record (gaps mean lost records)
   protocol::TimeNs window_start = 0, window_end = 0;
   std::uint64_t m = 0;      // readings averaged
@@ -69,10 +69,15 @@ struct HistorianRecord {
   double coverage_probability = 0;
   double u_repeatability = 0, u_calibration = 0, u_reference = 0, u_resolution = 0;
   Quality quality = Quality::bad;
-  std::string_view quality_reason;
-  CalibrationSnapshot calibration;
-  std::string_view reference_id, certificate_id;
   bool drift_alert = false;
+  std::string_view quality_reason;  // a fixed text
+  CalibrationSnapshot calibration;
+};
+
+struct HistorianRecord : HistorianValues {
+  std::string_view channel;
+  std::string_view units;
+  std::string_view reference_id, certificate_id;
 };
 
 // A record the engine refused after the protocol layer had accepted it.

@@ -29,7 +29,7 @@ struct HeldPair {
 class OutlierScreen {
  public:
   OutlierScreen(bool enabled, double limit, std::uint32_t max_held, std::uint32_t episode_pairs)
-      : enabled_(enabled), limit_(limit), max_held_(max_held), episode_pairs_(episode_pairs) {}
+      : limit_(limit), max_held_(max_held), episode_pairs_(episode_pairs), enabled_(enabled) {}
 
   // Studentised prediction residual of (x, y) against `fit`, with a floor on s (the sensor's
   // resolution/sqrt(12)) so that a noiseless fit does not call every step an outlier.
@@ -59,11 +59,11 @@ class OutlierScreen {
   }
 
  private:
-  bool enabled_;
   double limit_;
   std::uint32_t max_held_;
   std::uint32_t episode_pairs_;
   std::uint32_t episode_left_ = 0;  // pairs left in the open episode (0: none open)
+  bool enabled_;                    // after the 4-byte members, where it costs no padding
   std::vector<HeldPair> held_, rejected_, released_;
 };
 

@@ -5,7 +5,7 @@
 // Method. One tracker per range point x (the daemon keeps one for each end of the range). Each
 // snapshot k is the sensor's error there, e_k = e(x) at time t_k with its standard uncertainty u_k
 // (sensor_error.hpp). The trend e(t) = c0 + c1 t is fitted by weighted least squares with weights
-// 1 / u_k^2 (stats::StreamingLineFit, cumulative, O(1) memory). With the fitted level a at the
+// 1 / u_k^2 (a cumulative stats::LineAccumulator, O(1) memory). With the fitted level a at the
 // weighted mean time tbar and slope c1 (uncorrelated there), the tolerance limit L is crossed at
 //   t* = tbar + (L - a) / c1,           L = +MPE if c1 > 0, -MPE if c1 < 0.
 // The interval for the crossing is the set of times at which the trend's confidence band contains L
@@ -47,8 +47,8 @@
 
 #include "rigcal/result.hpp"
 #include "rigcal/stats/inference.hpp"
+#include "rigcal/stats/line_accumulator.hpp"
 #include "rigcal/stats/quantiles.hpp"
-#include "rigcal/stats/streaming_fit.hpp"
 
 namespace rigcal::metrology {
 
@@ -116,7 +116,7 @@ class DueForecastTracker {
   explicit DueForecastTracker(const DueForecastOptions& options);
 
   DueForecastOptions options_;
-  stats::StreamingLineFit trend_;
+  stats::LineAccumulator trend_;  // cumulative: no snapshot is ever removed, so none is stored
   std::optional<double> latest_time_s_;
 };
 

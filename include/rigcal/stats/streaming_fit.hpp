@@ -64,12 +64,19 @@ class StreamingLineFit {
 
  private:
   void rebuild();
+  // Doubles per slot of the ring: x, y, and the weight when weighted.
+  std::size_t stride() const { return weighted_ ? 3 : 2; }
+  std::size_t capacity() const { return ring_.size() / stride(); }
+  void put(std::size_t slot, double x, double y, double w);
+  void get(std::size_t slot, double& x, double& y, double& w) const;
 
   MemoryPolicy policy_;
   bool weighted_;
   LineAccumulator acc_;
-  std::vector<double> x_, y_, w_;  // ring buffer for the window policy
-  std::size_t head_ = 0;           // index of the oldest pair
+  // Ring buffer for the window policy, one slot per pair. One array rather than one per
+  // coordinate: every channel has a fit, and each array costs a vector and an allocation.
+  std::vector<double> ring_;
+  std::size_t head_ = 0;  // slot of the oldest pair
   std::size_t size_ = 0;
   std::uint64_t removals_ = 0;
 };
