@@ -91,12 +91,18 @@ class Daemon:
         c = socket.socket(socket.AF_UNIX)
         c.settimeout(timeout)
         c.connect(str(self.state / "control.sock"))
-        if secret:
-            c.sendall(f"AUTH {secret}\n".encode())
-        c.sendall((request + "\n").encode())
+        # One write, as `rigcal status` does: refused, rigcald answers and closes at once, and a second
+        # write could meet the closed socket (EPIPE) before the answer is read.
+        try:
+            c.sendall(((f"AUTH {secret}\n" if secret else "") + request + "\n").encode())
+        except BrokenPipeError:
+            pass  # closed before taking all of it: its answer is still there to read
         data = b""
         while True:
-            b = c.recv(65536)
+            try:
+                b = c.recv(65536)
+            except ConnectionResetError:  # rigcald closed with our request unread: the answer came first
+                break
             if not b:
                 break
             data += b
