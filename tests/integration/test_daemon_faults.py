@@ -12,39 +12,9 @@ import time
 import pytest
 
 from conftest import RIGCAL
-from daemon_harness import Daemon, ols
+from daemon_harness import CUMULATIVE_TT101, Daemon, assert_fit_is_batch_fit_of, write_pairs
 
-CUMULATIVE = """
-  - id: TT-101
-    units: degC
-    reference: {id: PRT-REF-07, expanded_uncertainty: 0.02}
-    certificate: {intercept: 0.0, slope: 1.0}
-    sensor: {noise_sd: 0.05}
-    fit: {memory: cumulative}
-    detector: {kind: interval}
-    screening: {enabled: false}
-"""
-
-
-def write_pairs(path, n, seed):
-    rng = random.Random(seed)
-    pairs, lines = [], []
-    for _ in range(n):
-        x = round(rng.uniform(20, 180), 4)
-        y = round(x + rng.gauss(0, 0.05), 4)
-        pairs.append((x, y))
-        lines.append(f"P TT-101 - {x} {y}")
-    path.write_text("\n".join(lines) + "\n")
-    return pairs
-
-
-def assert_fit_is_batch_fit_of(d, pairs):
-    fit = d.status("TT-101")["fit"]
-    ref = ols(*zip(*pairs))
-    assert fit["n"] == len(pairs), f"daemon holds {fit['n']} pairs; {len(pairs)} were acknowledged once each"
-    assert abs(fit["b1"] - ref["b1"]) < 1e-10 * abs(ref["b1"])
-    assert abs(fit["b0"] - ref["b0"]) < 1e-8
-    assert abs(fit["s"] - ref["s"]) < 1e-9 * ref["s"]
+CUMULATIVE = CUMULATIVE_TT101
 
 
 # ---- kill -9 in a loop ----

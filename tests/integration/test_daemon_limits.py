@@ -10,19 +10,10 @@ import time
 
 import pytest
 
-from daemon_harness import Daemon, ols
+from daemon_harness import CUMULATIVE_TT101, Daemon, ols
 from limits_record import cpu_seconds, open_fds, proc_status, record
 
-CUMULATIVE = """
-  - id: TT-101
-    units: degC
-    reference: {id: PRT-REF-07, expanded_uncertainty: 0.02}
-    certificate: {intercept: 0.0, slope: 1.0}
-    sensor: {noise_sd: 0.05}
-    fit: {memory: cumulative}
-    detector: {kind: interval}
-    screening: {enabled: false}
-"""
+CUMULATIVE = CUMULATIVE_TT101
 
 
 def tcp_input(d, **options):

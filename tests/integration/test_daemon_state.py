@@ -6,17 +6,9 @@ import subprocess
 import time
 
 from conftest import RIGCAL
-from daemon_harness import Daemon, ols
+from daemon_harness import CUMULATIVE_TT101, Daemon, assert_fit_is_batch_fit_of, ols, write_pairs
 
-CUMULATIVE = """
-  - id: TT-101
-    units: degC
-    reference: {id: PRT-REF-07, expanded_uncertainty: 0.02}
-    certificate: {intercept: 0.0, slope: 1.0}
-    sensor: {noise_sd: 0.05}
-    fit: {memory: cumulative}
-    detector: {kind: interval}
-    screening: {enabled: false}
+CUMULATIVE = CUMULATIVE_TT101 + """
   - id: PT-204
     units: bar
     certificate: {intercept: 0.0, slope: 1.0}
@@ -25,28 +17,6 @@ CUMULATIVE = """
     detector: {kind: interval}
     screening: {enabled: false}
 """
-
-
-def write_pairs(path, n, seed):
-    rng = random.Random(seed)
-    pairs = []
-    lines = []
-    for _ in range(n):
-        x = round(rng.uniform(20, 180), 4)
-        y = round(x + rng.gauss(0, 0.05), 4)
-        pairs.append((x, y))
-        lines.append(f"P TT-101 - {x} {y}")
-    path.write_text("\n".join(lines) + "\n")
-    return pairs
-
-
-def check_fit_equals_batch(d, pairs):
-    fit = d.status("TT-101")["fit"]
-    ref = ols(*zip(*pairs))
-    assert fit["n"] == len(pairs), f"daemon holds {fit['n']} pairs, {len(pairs)} were sent once each"
-    assert abs(fit["b1"] - ref["b1"]) < 1e-10 * abs(ref["b1"])
-    assert abs(fit["b0"] - ref["b0"]) < 1e-8
-    assert abs(fit["s"] - ref["s"]) < 1e-9 * ref["s"]
 
 
 def test_kill_9_at_random_moments_during_a_replay_loses_and_duplicates_nothing(tmp_path):
@@ -71,7 +41,7 @@ def test_kill_9_at_random_moments_during_a_replay_loses_and_duplicates_nothing(t
         assert sender.returncode == 0, out + err
         assert kills >= 2, "the replay finished before the daemon could be killed twice"
         assert "30000 sent, 30000 acknowledged, 0 rejected, 0 failed" in out
-        check_fit_equals_batch(d, pairs)
+        assert_fit_is_batch_fit_of(d, pairs)
         # the last restart may come after the sender finished: that process then has no input counters
         assert sum(i["rejects_total"] for i in d.status()["inputs"]) == 0
     finally:
@@ -93,7 +63,7 @@ def test_a_clean_restart_restores_the_checkpoint_and_continues(tmp_path):
     pairs += write_pairs(more, 1000, seed=7)
     assert subprocess.run([str(RIGCAL), "send", str(more), "--tcp", f"127.0.0.1:{d.tcp_port}", "--stream", "b"],
                           capture_output=True, timeout=60).returncode == 0
-    check_fit_equals_batch(d, pairs)
+    assert_fit_is_batch_fit_of(d, pairs)
     assert d.stop() == 0
 
 
@@ -122,7 +92,7 @@ def test_a_torn_final_journal_record_is_skipped_with_a_warning(tmp_path):
     # a sender resuming the stream fills the gap exactly once
     assert subprocess.run([str(RIGCAL), "send", str(data), "--tcp", f"127.0.0.1:{d.tcp_port}", "--stream", "t"],
                           capture_output=True, timeout=60).returncode == 0
-    check_fit_equals_batch(d, pairs)
+    assert_fit_is_batch_fit_of(d, pairs)
     assert d.stop() == 0
 
 
@@ -151,7 +121,7 @@ def test_a_corrupted_checkpoint_is_detected_and_the_state_rebuilt_from_the_previ
     d.start()
     assert "checkpoint checksum mismatch (file corrupted)" in d.log()
     assert "restored checkpoint 1" in d.log()
-    check_fit_equals_batch(d, pairs)
+    assert_fit_is_batch_fit_of(d, pairs)
     assert d.stop() == 0
 
 
@@ -172,7 +142,7 @@ def test_with_archived_segments_even_every_checkpoint_lost_is_rebuilt_from_the_j
         corrupt(cp)
     d.start()
     assert "replaying" in d.log() and "archived segments first" in d.log()
-    check_fit_equals_batch(d, pairs)
+    assert_fit_is_batch_fit_of(d, pairs)
     assert d.stop() == 0
 
 
