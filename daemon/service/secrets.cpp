@@ -6,6 +6,8 @@
 
 #include <fstream>
 
+#include "rigcal/protocol/auth_secret.hpp"
+
 namespace rigcal::service {
 
 namespace {
@@ -28,16 +30,9 @@ Result<std::string> read_secret_file(const std::string& path) {
   if (st.st_mode & S_IROTH) return Error{path + ": secret file is readable by every user; chmod o-r it"};
   std::ifstream in(path);
   std::string line;
+  // Only the first line is read: what follows it does not change the secret.
   if (!in || !std::getline(in, line)) return Error{path + ": cannot read the secret file"};
-  // The same rule as rigcal's --secret-file: surrounding blanks dropped, one word, because AUTH takes
-  // a single argument: a secret with a space in it could never be sent, and every sender would be
-  // refused.
-  const auto first = line.find_first_not_of(" \t\r");
-  if (first == std::string::npos) return Error{path + ": the secret is empty"};
-  line = line.substr(first, line.find_last_not_of(" \t\r") - first + 1);
-  if (line.find_first_of(" \t") != std::string::npos)
-    return Error{path + ": the secret must be one word (AUTH takes a single argument)"};
-  return line;
+  return protocol::auth_secret_from_text(line, path);
 }
 
 }  // namespace rigcal::service

@@ -7,6 +7,7 @@
 #include <fmt/format.h>
 #include <iostream>
 
+#include "rigcal/protocol/auth_secret.hpp"
 #include "rigcal/protocol/record.hpp"
 
 namespace rigcal::tool {
@@ -109,13 +110,7 @@ Result<std::string> read_secret_file(const std::string& path) {
   std::string error;
   auto text = read_text_file(path, error);
   if (!text) return Error{error};
-  std::string s = *text;
-  const auto first = s.find_first_not_of(" \t\r\n");
-  if (first == std::string::npos) return Error{path + ": the secret file is empty"};
-  s = s.substr(first, s.find_last_not_of(" \t\r\n") - first + 1);
-  if (s.find_first_of(" \t\r\n") != std::string::npos)
-    return Error{path + ": the secret must be one word (AUTH takes a single argument)"};
-  return s;
+  return protocol::auth_secret_from_text(*text, path);
 }
 
 namespace {
