@@ -119,6 +119,8 @@ class Daemon:
         rc = self.proc.wait(timeout=timeout)
         self.proc = None
         self.log_file.close()
+        if rc != 0:  # shown by pytest with the failure the caller's assertion makes of it
+            print(f"rigcald exited with {rc}; the end of its log:\n{self.log()[-6000:]}")
         return rc
 
     def kill9(self):
